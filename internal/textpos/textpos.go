@@ -1,0 +1,49 @@
+// Package textpos converts between UTF-8 byte offsets, which Go code uses, and Unicode code-point
+// offsets, which Python str indexing and Hugging Face offset_mapping use. Every conversion in gainsay
+// goes through here.
+package textpos
+
+import "unicode/utf8"
+
+// Index maps byte offsets of one string to code-point offsets.
+type Index struct {
+	s     string
+	ascii bool
+}
+
+// New indexes s.
+func New(s string) Index {
+	ascii := true
+	for i := 0; i < len(s); i++ {
+		if s[i] >= utf8.RuneSelf {
+			ascii = false
+			break
+		}
+	}
+	return Index{s: s, ascii: ascii}
+}
+
+// Runes returns the code-point offset of byte offset b. A b inside a multi-byte character counts the
+// characters that start before it.
+func (x Index) Runes(b int) int {
+	if x.ascii {
+		return b
+	}
+	b = min(max(b, 0), len(x.s))
+	return utf8.RuneCountInString(x.s[:b])
+}
+
+// Bytes returns the byte offset of code-point offset r (len(s) past the end).
+func (x Index) Bytes(r int) int {
+	if x.ascii {
+		return min(max(r, 0), len(x.s))
+	}
+	n := 0
+	for i := range x.s {
+		if n == r {
+			return i
+		}
+		n++
+	}
+	return len(x.s)
+}

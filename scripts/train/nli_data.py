@@ -1,0 +1,112 @@
+"""Open NLI data for the built-in model, and the fixed held-out split.
+
+The split follows shared/data/SOURCES.md and is the one the model card documents:
+
+* SNLI test (all rows) is held out.
+* SNLI dev lines 1-1,510 (the rows e-SNLI annotates with highlights) are held out; lines 1,511-9,842 train.
+* MultiNLI (TaxiNLI subset): a row is held out when the first 8 hex digits of SHA-256(pairID), read as an
+  integer, are divisible by 5 (about one fifth); the rest train.
+* Breaking NLI: the categories in BREAKING_HELD_OUT are held out, the others train.
+
+Rows labelled with anything but the three classes ('-' in SNLI: no annotator majority) are dropped.
+"""
+from __future__ import annotations
+
+import csv
+import hashlib
+import json
+import os
+from dataclasses import dataclass
+
+LABELS = ("contradiction", "entailment", "neutral")
+
+BREAKING_HELD_OUT = frozenset(
+    {"antonyms_wordnet", "cardinals", "colors", "drinks", "nationalities", "rooms", "vegetables"}
+)
+ESNLI_ROWS = 1510
+
+
+@dataclass(frozen=True)
+class Pair:
+    premise: str
+    hypothesis: str
+    label: str
+    source: str  # e.g. "snli-test:17" (file and 1-based line or row id)
+
+
+def data_dir() -> str:
+    here = os.path.dirname(os.path.abspath(__file__))
+    return os.environ.get("GAINSAY_DATA", os.path.join(here, "..", "..", "..", "shared", "data"))
+
+
+def detok(s: str) -> str:
+    """SNLI as distributed with e-SNLI is tokenised ("packages . "); undo the spaces before punctuation so
+    that the model sees text as people write it."""
+    s = s.strip()
+    for p in (" .", " ,", " !", " ?", " ;", " :", " 's", " n't", " '"):
+        s = s.replace(p, p[1:])
+    return s
+
+
+def mnli_held_out(pair_id: str) -> bool:
+    return int(hashlib.sha256(pair_id.encode("utf-8")).hexdigest()[:8], 16) % 5 == 0
+
+
+def snli(split: str, lines: range | None = None) -> list[Pair]:
+    d = os.path.join(data_dir(), "snli")
+    with open(os.path.join(d, f"s1.{split}"), encoding="utf-8") as f1, open(
+        os.path.join(d, f"s2.{split}"), encoding="utf-8"
+    ) as f2, open(os.path.join(d, f"labels.{split}"), encoding="utf-8") as fl:
+        out = []
+        for i, (p, h, y) in enumerate(zip(f1, f2, fl), start=1):
+            y = y.strip()
+            if lines is not None and i not in lines:
+                continue
+            if y in LABELS:
+                out.append(Pair(detok(p), detok(h), y, f"snli-{split}:{i}"))
+        return out
+
+
+def mnli(held_out: bool) -> list[Pair]:
+    path = os.path.join(data_dir(), "mnli_taxinli", "taxinli10k_MNLIDev.tsv")
+    with open(path, encoding="utf-8", newline="") as f:
+        rows = list(csv.DictReader(f, delimiter="\t"))
+    return [
+        Pair(r["prem"].strip(), r["hyp"].strip(), r["label"], f"mnli:{r['pairID']}")
+        for r in rows
+        if r["label"] in LABELS and mnli_held_out(r["pairID"]) == held_out
+    ]
+
+
+def breaking(held_out: bool) -> list[Pair]:
+    path = os.path.join(data_dir(), "breaking_nli", "dataset.jsonl")
+    out = []
+    with open(path, encoding="utf-8") as f:
+        for line in f:
+            d = json.loads(line)
+            if (d["category"] in BREAKING_HELD_OUT) == held_out and d["gold_label"] in LABELS:
+                out.append(Pair(d["sentence1"], d["sentence2"], d["gold_label"], f"breaking:{d['pairID']}"))
+    return out
+
+
+def training_pairs() -> list[Pair]:
+    dev_lines = range(ESNLI_ROWS + 1, 10**9)
+    return snli("dev", dev_lines) + mnli(held_out=False) + breaking(held_out=False)
+
+
+def held_out_sets() -> dict[str, list[Pair]]:
+    return {
+        "snli-test": snli("test"),
+        "snli-dev-esnli": snli("dev", range(1, ESNLI_ROWS + 1)),
+        "mnli-held-out": mnli(held_out=True),
+        "breaking-held-out": breaking(held_out=True),
+    }
+
+
+if __name__ == "__main__":
+    import collections
+
+    tr = training_pairs()
+    print("train", len(tr), collections.Counter(p.label for p in tr))
+    for k, v in held_out_sets().items():
+        print(k, len(v), collections.Counter(p.label for p in v))
