@@ -1,0 +1,166 @@
+package nli
+
+import (
+	"fmt"
+	"unicode"
+	"unicode/utf8"
+)
+
+// Occlusion is how leave-one-word-out attribution takes a word away.
+type Occlusion string
+
+const (
+	// Delete drops the word's tokens, so the model sees a natural sentence one word shorter. Default:
+	// fine-tuned cross-encoders rarely saw mask tokens in training, and a deleted word cannot carry
+	// meaning through a placeholder.
+	Delete Occlusion = "delete"
+	// Mask replaces each of the word's tokens with the mask token (the unknown token where the vocabulary
+	// has none), so positions and length stay as they were.
+	Mask Occlusion = "mask"
+)
+
+// ParseOcclusion reads "delete" or "mask".
+func ParseOcclusion(s string) (Occlusion, error) {
+	switch Occlusion(s) {
+	case Delete, Mask:
+		return Occlusion(s), nil
+	case "":
+		return Delete, nil
+	}
+	return "", fmt.Errorf("occlusion %q: want delete or mask", s)
+}
+
+// Word is a word of a hypothesis: a byte range of its text and the range of its tokens.
+type Word struct {
+	Start, End int // UTF-8 bytes into the hypothesis
+	first, end int // token indexes into the hypothesis pieces, end exclusive
+}
+
+// Words groups a text's pieces into words. Pieces that touch (no space between them) form one word,
+// except that punctuation-only pieces at either end of such a run are words of their own: "sea." is
+// "sea" and ".", "don't" stays whole. Leading spaces inside a piece's range (Metaspace and byte-level
+// tokens carry them) are not part of a word; a piece that is only space joins the next word.
+func Words(text string, pieces []Piece) []Word {
+	type span struct{ start, end int }
+	spans := make([]span, len(pieces))
+	for i, p := range pieces {
+		s := p.Start
+		for s < p.End {
+			r, n := utf8.DecodeRuneInString(text[s:])
+			if !unicode.IsSpace(r) {
+				break
+			}
+			s += n
+		}
+		spans[i] = span{s, p.End}
+	}
+	empty := func(i int) bool { return spans[i].start >= spans[i].end }
+	punct := func(i int) bool {
+		if empty(i) {
+			return false
+		}
+		for _, r := range text[spans[i].start:spans[i].end] {
+			if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
+				return false
+			}
+		}
+		return true
+	}
+	var words []Word
+	for i := 0; i < len(pieces); {
+		// [i, j) is a run of pieces with no space between them.
+		j, end := i+1, spans[i].end
+		for j < len(pieces) && spans[j].start <= end {
+			end = max(end, spans[j].end)
+			j++
+		}
+		a, b := i, j
+		for a < b && empty(a) {
+			a++
+		}
+		lead := i // the next word starts here, space-only pieces included
+		for a < b && punct(a) {
+			words = append(words, Word{spans[a].start, spans[a].end, lead, a + 1})
+			lead, a = a+1, a+1
+		}
+		var tail []Word
+		for b > a && punct(b-1) {
+			tail = append([]Word{{spans[b-1].start, spans[b-1].end, b - 1, b}}, tail...)
+			b--
+		}
+		if a < b {
+			words = append(words, Word{spans[a].start, spans[b-1].end, lead, b})
+		}
+		words = append(words, tail...)
+		i = j
+	}
+	return words
+}
+
+// Attribution is leave-one-word-out attribution for one pair: how much the contradiction probability
+// falls when each hypothesis word is taken away (Li, Monroe, Jurafsky 2016, "Understanding Neural
+// Networks through Representation Erasure", applied to input words).
+type Attribution struct {
+	// Contradiction is the probability for the whole pair.
+	Contradiction float64
+	Words         []WordWeight
+}
+
+// WordWeight is one hypothesis word and the drop in contradiction probability without it, clamped at 0.
+type WordWeight struct {
+	Start, End int // UTF-8 bytes into the hypothesis
+	Weight     float64
+}
+
+// Attribute computes leave-one-word-out attribution for each pair: for every hypothesis word, the pair
+// is scored again without it, all variants of a pair in one batched run.
+func (m *Model) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
+	out := make([]Attribution, len(pairs))
+	for i, p := range pairs {
+		a, err := m.attributeOne(p, how)
+		if err != nil {
+			return nil, fmt.Errorf("pair %d: %w", i, err)
+		}
+		out[i] = a
+	}
+	return out, nil
+}
+
+func (m *Model) attributeOne(p Pair, how Occlusion) (Attribution, error) {
+	prem, err := m.tok.Tokenize(p.Premise)
+	if err != nil {
+		return Attribution{}, err
+	}
+	hyp, err := m.tok.Tokenize(p.Hypothesis)
+	if err != nil {
+		return Attribution{}, err
+	}
+	words := Words(p.Hypothesis, hyp)
+	encs := make([]Encoding, 0, len(words)+1)
+	encs = append(encs, m.tok.Assemble(prem, hyp, m.maxLen))
+	mask := m.tok.MaskID()
+	for _, w := range words {
+		var variant []Piece
+		switch how {
+		case Mask:
+			variant = append([]Piece(nil), hyp...)
+			if mask >= 0 {
+				for k := w.first; k < w.end; k++ {
+					variant[k].ID = mask
+				}
+			}
+		default:
+			variant = append(append([]Piece(nil), hyp[:w.first]...), hyp[w.end:]...)
+		}
+		encs = append(encs, m.tok.Assemble(prem, variant, m.maxLen))
+	}
+	probs, err := m.PredictEncoded(encs)
+	if err != nil {
+		return Attribution{}, err
+	}
+	a := Attribution{Contradiction: probs[0].Contradiction, Words: make([]WordWeight, len(words))}
+	for k, w := range words {
+		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, probs[0].Contradiction-probs[k+1].Contradiction)}
+	}
+	return a, nil
+}

@@ -1,0 +1,377 @@
+package nli
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"math"
+	"os"
+	"slices"
+	"strings"
+
+	ort "github.com/yalue/onnxruntime_go"
+)
+
+// Probs are the three NLI probabilities of one pair.
+type Probs struct {
+	Contradiction float64 `json:"contradiction"`
+	Entailment    float64 `json:"entailment"`
+	Neutral       float64 `json:"neutral"`
+}
+
+// Pair is one premise (a profile fact) and hypothesis (a reply sentence).
+type Pair struct {
+	Premise, Hypothesis string
+}
+
+// Options tune how a model runs. The zero value is usable.
+type Options struct {
+	// MaxLength caps tokens per pair (0: the model's own limit).
+	MaxLength int
+	// BatchSize is the number of pairs per ONNX Runtime run (0: 32).
+	BatchSize int
+	// Threads for ONNX Runtime's intra-op pool (0: its default, all cores).
+	Threads int
+	// Library is the ONNX Runtime shared library ("" : FindLibrary's choice).
+	Library string
+	// SHA256, when set, must equal the SHA-256 of model.onnx.
+	SHA256 string
+}
+
+// Model is an NLI cross-encoder loaded from a model folder: model.onnx, tokenizer.json and config.json
+// (whose id2label says which logit is which label). It is safe for concurrent use.
+type Model struct {
+	session   *ort.DynamicAdvancedSession
+	tok       *Tokenizer
+	inputs    []string // names of the inputs the model takes, in the order passed to Run
+	labels    [3]int   // logit index of contradiction, entailment, neutral
+	nLogits   int
+	maxLen    int
+	batchSize int
+	sha256    string
+}
+
+// Files a model folder must hold.
+const (
+	FileModel     = "model.onnx"
+	FileTokenizer = "tokenizer.json"
+	FileConfig    = "config.json"
+)
+
+// OpenDir loads the model folder dir.
+func OpenDir(dir string, opts Options) (*Model, error) {
+	m, err := Open(os.DirFS(dir), opts)
+	if err != nil {
+		return nil, fmt.Errorf("model %s: %w", dir, err)
+	}
+	return m, nil
+}
+
+// Config is what gainsay reads from a model's config.json.
+type Config struct {
+	ID2Label              map[string]string `json:"id2label"`
+	MaxPositionEmbeddings int               `json:"max_position_embeddings"`
+	ModelType             string            `json:"model_type"`
+}
+
+// ReadConfig parses config.json and maps its labels to logit indexes.
+func ReadConfig(data []byte) (Config, [3]int, error) {
+	var c Config
+	var idx [3]int
+	if err := json.Unmarshal(data, &c); err != nil {
+		return c, idx, fmt.Errorf("%s: %w", FileConfig, err)
+	}
+	if len(c.ID2Label) != 3 {
+		return c, idx, fmt.Errorf("%s: id2label has %d labels; an NLI model needs exactly contradiction, entailment and neutral", FileConfig, len(c.ID2Label))
+	}
+	idx = [3]int{-1, -1, -1}
+	for k, v := range c.ID2Label {
+		var i int
+		if _, err := fmt.Sscanf(k, "%d", &i); err != nil || i < 0 || i > 2 {
+			return c, idx, fmt.Errorf("%s: id2label key %q is not 0, 1 or 2", FileConfig, k)
+		}
+		switch strings.ToLower(strings.TrimSpace(v)) {
+		case "contradiction":
+			idx[0] = i
+		case "entailment":
+			idx[1] = i
+		case "neutral":
+			idx[2] = i
+		default:
+			return c, idx, fmt.Errorf("%s: id2label %s is %q; want contradiction, entailment or neutral", FileConfig, k, v)
+		}
+	}
+	if slices.Contains(idx[:], -1) {
+		return c, idx, fmt.Errorf("%s: id2label must name contradiction, entailment and neutral once each", FileConfig)
+	}
+	return c, idx, nil
+}
+
+// Open loads a model from the files of fsys.
+func Open(fsys fs.FS, opts Options) (*Model, error) {
+	read := func(name string) ([]byte, error) {
+		b, err := fs.ReadFile(fsys, name)
+		if errors.Is(err, fs.ErrNotExist) {
+			return nil, fmt.Errorf("%s is missing (a model folder holds %s, %s and %s)", name, FileModel, FileTokenizer, FileConfig)
+		}
+		return b, err
+	}
+	cfgData, err := read(FileConfig)
+	if err != nil {
+		return nil, err
+	}
+	cfg, labels, err := ReadConfig(cfgData)
+	if err != nil {
+		return nil, err
+	}
+	tokData, err := read(FileTokenizer)
+	if err != nil {
+		return nil, err
+	}
+	tok, err := LoadTokenizer(tokData)
+	if err != nil {
+		return nil, err
+	}
+	onnxData, err := read(FileModel)
+	if err != nil {
+		return nil, err
+	}
+	sum := sha256.Sum256(onnxData)
+	digest := hex.EncodeToString(sum[:])
+	if opts.SHA256 != "" && !strings.EqualFold(opts.SHA256, digest) {
+		return nil, fmt.Errorf("%s: SHA-256 is %s, want %s (the file is damaged or not the expected model)", FileModel, digest, opts.SHA256)
+	}
+	if err := InitRuntime(opts.Library); err != nil {
+		return nil, err
+	}
+	m := &Model{tok: tok, labels: labels, sha256: digest, batchSize: opts.BatchSize}
+	if m.batchSize <= 0 {
+		m.batchSize = 32
+	}
+	m.maxLen = 512
+	if cfg.MaxPositionEmbeddings > 0 {
+		m.maxLen = cfg.MaxPositionEmbeddings
+		if strings.Contains(cfg.ModelType, "roberta") || cfg.ModelType == "bart" {
+			m.maxLen -= 2 // RoBERTa's position ids start after the padding index
+		}
+	}
+	if opts.MaxLength > 0 {
+		m.maxLen = min(m.maxLen, opts.MaxLength)
+	}
+	if err := m.openSession(onnxData, opts.Threads); err != nil {
+		return nil, fmt.Errorf("%s: %w", FileModel, err)
+	}
+	return m, nil
+}
+
+func (m *Model) openSession(data []byte, threads int) error {
+	ins, outs, err := ort.GetInputOutputInfoWithONNXData(data)
+	if err != nil {
+		return err
+	}
+	have := map[string]bool{}
+	for _, in := range ins {
+		have[in.Name] = true
+	}
+	for _, in := range ins {
+		switch in.Name {
+		case "input_ids", "attention_mask", "token_type_ids":
+			if in.DataType != ort.TensorElementDataTypeInt64 {
+				return fmt.Errorf("input %s is %v; want int64", in.Name, in.DataType)
+			}
+			m.inputs = append(m.inputs, in.Name)
+		default:
+			return fmt.Errorf("input %q is not one of input_ids, attention_mask, token_type_ids", in.Name)
+		}
+	}
+	if !have["input_ids"] || !have["attention_mask"] {
+		return fmt.Errorf("the model must take input_ids and attention_mask")
+	}
+	// The logits: the output named "logits", else the only output.
+	output := ""
+	for _, o := range outs {
+		if o.Name == "logits" {
+			output = o.Name
+		}
+	}
+	if output == "" {
+		if len(outs) != 1 {
+			return fmt.Errorf("no output named logits among %d outputs", len(outs))
+		}
+		output = outs[0].Name
+	}
+	for _, o := range outs {
+		if o.Name == output {
+			if o.DataType != ort.TensorElementDataTypeFloat {
+				return fmt.Errorf("output %s is %v; want float32", o.Name, o.DataType)
+			}
+			if d := o.Dimensions; len(d) != 2 || (d[1] > 0 && d[1] != 3) {
+				return fmt.Errorf("output %s has shape %v; want [batch, 3]", o.Name, d)
+			}
+		}
+	}
+	m.nLogits = 3
+	so, err := ort.NewSessionOptions()
+	if err != nil {
+		return err
+	}
+	defer so.Destroy()
+	if threads > 0 {
+		if err := so.SetIntraOpNumThreads(threads); err != nil {
+			return err
+		}
+	}
+	m.session, err = ort.NewDynamicAdvancedSessionWithONNXData(data, m.inputs, []string{output}, so)
+	return err
+}
+
+// Close releases the ONNX Runtime session.
+func (m *Model) Close() error {
+	if m.session == nil {
+		return nil
+	}
+	err := m.session.Destroy()
+	m.session = nil
+	return err
+}
+
+// Tokenizer is the model's tokenizer.
+func (m *Model) Tokenizer() *Tokenizer { return m.tok }
+
+// MaxLength is the most tokens a pair may have.
+func (m *Model) MaxLength() int { return m.maxLen }
+
+// SHA256 is the hex SHA-256 of model.onnx.
+func (m *Model) SHA256() string { return m.sha256 }
+
+// Encode encodes pairs with the model's tokenizer and length limit.
+func (m *Model) Encode(pairs []Pair) ([]Encoding, error) {
+	out := make([]Encoding, len(pairs))
+	for i, p := range pairs {
+		e, err := m.tok.EncodePair(p.Premise, p.Hypothesis, m.maxLen)
+		if err != nil {
+			return nil, err
+		}
+		out[i] = e
+	}
+	return out, nil
+}
+
+// Predict returns the probabilities of each pair, in order.
+func (m *Model) Predict(pairs []Pair) ([]Probs, error) {
+	encs, err := m.Encode(pairs)
+	if err != nil {
+		return nil, err
+	}
+	return m.PredictEncoded(encs)
+}
+
+// PredictEncoded runs encoded pairs through the model, BatchSize at a time. Pairs of similar length are
+// batched together and each batch is padded to its own longest pair, so that little time goes into
+// padding; the results come back in input order.
+func (m *Model) PredictEncoded(encs []Encoding) ([]Probs, error) {
+	order := make([]int, len(encs))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int { return encs[a].Len() - encs[b].Len() })
+	out := make([]Probs, len(encs))
+	batch := make([]*Encoding, 0, m.batchSize)
+	for start := 0; start < len(order); start += m.batchSize {
+		batch = batch[:0]
+		idx := order[start:min(start+m.batchSize, len(order))]
+		for _, i := range idx {
+			batch = append(batch, &encs[i])
+		}
+		probs, err := m.run(batch)
+		if err != nil {
+			return nil, err
+		}
+		for k, i := range idx {
+			out[i] = probs[k]
+		}
+	}
+	return out, nil
+}
+
+// run is one ONNX Runtime call on a batch, padded to its longest encoding.
+func (m *Model) run(batch []*Encoding) ([]Probs, error) {
+	if m.session == nil {
+		return nil, errors.New("model is closed")
+	}
+	b, s := len(batch), 0
+	for _, e := range batch {
+		s = max(s, e.Len())
+	}
+	if s == 0 {
+		s = 1
+	}
+	shape := ort.NewShape(int64(b), int64(s))
+	values := make([]ort.Value, 0, len(m.inputs))
+	defer func() {
+		for _, v := range values {
+			v.Destroy()
+		}
+	}()
+	for _, name := range m.inputs {
+		data := make([]int64, b*s)
+		for r, e := range batch {
+			row := data[r*s : (r+1)*s]
+			switch name {
+			case "input_ids":
+				copy(row, e.IDs)
+				for k := e.Len(); k < s; k++ {
+					row[k] = int64(m.tok.PadID())
+				}
+			case "attention_mask":
+				for k := range e.Len() {
+					row[k] = 1
+				}
+			case "token_type_ids":
+				copy(row, e.TypeIDs)
+			}
+		}
+		t, err := ort.NewTensor(shape, data)
+		if err != nil {
+			return nil, err
+		}
+		values = append(values, t)
+	}
+	outputs := []ort.Value{nil}
+	if err := m.session.Run(values, outputs); err != nil {
+		return nil, fmt.Errorf("onnxruntime: %w", err)
+	}
+	defer outputs[0].Destroy()
+	logits, ok := outputs[0].(*ort.Tensor[float32])
+	if !ok {
+		return nil, fmt.Errorf("onnxruntime: output is %T, want float32 tensor", outputs[0])
+	}
+	if sh := logits.GetShape(); len(sh) != 2 || sh[0] != int64(b) || sh[1] != int64(m.nLogits) {
+		return nil, fmt.Errorf("onnxruntime: output shape %v, want [%d %d]", sh, b, m.nLogits)
+	}
+	data := logits.GetData()
+	out := make([]Probs, b)
+	for r := range b {
+		p := softmax3(data[r*3 : r*3+3])
+		out[r] = Probs{Contradiction: p[m.labels[0]], Entailment: p[m.labels[1]], Neutral: p[m.labels[2]]}
+	}
+	return out, nil
+}
+
+// softmax3 in float64, shifted by the maximum for stability.
+func softmax3(l []float32) [3]float64 {
+	mx := math.Max(float64(l[0]), math.Max(float64(l[1]), float64(l[2])))
+	var e [3]float64
+	sum := 0.0
+	for i := range 3 {
+		e[i] = math.Exp(float64(l[i]) - mx)
+		sum += e[i]
+	}
+	for i := range 3 {
+		e[i] /= sum
+	}
+	return e
+}
