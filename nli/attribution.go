@@ -104,6 +104,8 @@ type Attribution struct {
 	// Contradiction is the probability for the whole pair.
 	Contradiction float64
 	Words         []WordWeight
+	// Truncated: the pair was cut to the model's maximum length.
+	Truncated bool
 }
 
 // WordWeight is one hypothesis word and the drop in contradiction probability without it, clamped at 0.
@@ -158,7 +160,7 @@ func (m *Model) attributeOne(p Pair, how Occlusion) (Attribution, error) {
 	if err != nil {
 		return Attribution{}, err
 	}
-	a := Attribution{Contradiction: probs[0].Contradiction, Words: make([]WordWeight, len(words))}
+	a := Attribution{Contradiction: probs[0].Contradiction, Words: make([]WordWeight, len(words)), Truncated: encs[0].Truncated}
 	for k, w := range words {
 		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, probs[0].Contradiction-probs[k+1].Contradiction)}
 	}

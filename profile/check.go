@@ -1,0 +1,294 @@
+package profile
+
+import (
+	"cmp"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"slices"
+	"time"
+
+	"github.com/gainsay/gainsay/internal/textpos"
+	"github.com/gainsay/gainsay/nli"
+)
+
+// Scorer is what the check needs from an NLI model; *nli.Model is one.
+type Scorer interface {
+	Predict(pairs []nli.Pair) ([]nli.Probs, error)
+	Attribute(pairs []nli.Pair, how nli.Occlusion) ([]nli.Attribution, error)
+}
+
+// SpanRule says which attributed words become penalty spans: a word whose weight is at least MinWeight
+// and at least Relative times the pair's largest word weight.
+type SpanRule struct {
+	MinWeight float64
+	Relative  float64
+}
+
+// DefaultSpanRule keeps words that carry at least half of the strongest word's effect and move the
+// contradiction probability by 0.05 or more.
+var DefaultSpanRule = SpanRule{MinWeight: 0.05, Relative: 0.5}
+
+// DefaultThreshold is the contradiction probability at which a pair is flagged.
+const DefaultThreshold = 0.5
+
+// Checker scores replies against a profile and turns contradictions into penalty spans.
+type Checker struct {
+	Scorer    Scorer
+	Threshold float64       // 0: DefaultThreshold
+	Occlusion nli.Occlusion // "": nli.Delete
+	Spans     SpanRule      // zero: DefaultSpanRule
+	// Model names the model in every record (e.g. "builtin@1a2b3c4d").
+	Model string
+}
+
+// Stats summarise a run.
+type Stats struct {
+	Replies, Contradictions, Errors int
+	// Pairs scored and pairs attributed (at or above the threshold).
+	Pairs, Attributed int
+	Elapsed           time.Duration
+}
+
+func (c *Checker) threshold() float64 {
+	if c.Threshold > 0 {
+		return c.Threshold
+	}
+	return DefaultThreshold
+}
+
+func (c *Checker) spanRule() SpanRule {
+	if c.Spans == (SpanRule{}) {
+		return DefaultSpanRule
+	}
+	return c.Spans
+}
+
+// pairRef ties a scored pair to its reply, fact and sentence.
+type pairRef struct {
+	reply, fact int
+	sent        Span
+}
+
+// Check returns one record per reply, in order. Replies with Err set become error records. If the
+// scorer fails on the batch, each reply is retried alone, so that one bad reply cannot sink the others.
+func (c *Checker) Check(p *Profile, replies []Reply) ([]Record, Stats, error) {
+	start := time.Now()
+	recs, st, err := c.check(p, replies)
+	if err != nil && len(replies) > 1 {
+		recs, st = make([]Record, len(replies)), Stats{}
+		for i := range replies {
+			one, s1, err1 := c.check(p, replies[i:i+1])
+			if err1 != nil {
+				r := replies[i]
+				r.Err = err1
+				one, s1, _ = c.check(p, []Reply{r})
+			}
+			recs[i] = one[0]
+			st.Pairs += s1.Pairs
+			st.Attributed += s1.Attributed
+		}
+		err = nil
+	}
+	if err != nil {
+		return nil, st, err
+	}
+	st.Replies = len(recs)
+	for _, r := range recs {
+		switch r.Verdict {
+		case Contradiction:
+			st.Contradictions++
+		case Failed:
+			st.Errors++
+		}
+	}
+	st.Elapsed = time.Since(start)
+	return recs, st, nil
+}
+
+func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
+	var st Stats
+	recs := make([]Record, len(replies))
+	var refs []pairRef
+	var pairs []nli.Pair
+	for i, r := range replies {
+		recs[i] = Record{ID: r.ID, Text: r.Text, Context: r.Context, Line: r.Line, Model: c.Model,
+			Threshold: Prob(c.threshold()), Extra: r.Extra, Verdict: Consistent}
+		if r.Err != nil {
+			recs[i].Verdict, recs[i].Error = Failed, r.Err.Error()
+			continue
+		}
+		sentences := Sentences(r.Text)
+		for fi, f := range p.Facts {
+			for _, s := range sentences {
+				refs = append(refs, pairRef{i, fi, s})
+				pairs = append(pairs, nli.Pair{Premise: f.Text, Hypothesis: r.Text[s.Start:s.End]})
+			}
+		}
+	}
+	st.Pairs = len(pairs)
+	if len(pairs) == 0 {
+		return recs, st, nil
+	}
+	probs, err := c.Scorer.Predict(pairs)
+	if err != nil {
+		return nil, st, fmt.Errorf("scoring: %w", err)
+	}
+	var flagged []int
+	for k, pr := range probs {
+		rec := &recs[refs[k].reply]
+		rec.Score = max(rec.Score, Prob(pr.Contradiction))
+		if pr.Contradiction >= c.threshold() {
+			flagged = append(flagged, k)
+		}
+	}
+	st.Attributed = len(flagged)
+	if len(flagged) > 0 {
+		fp := make([]nli.Pair, len(flagged))
+		for j, k := range flagged {
+			fp[j] = pairs[k]
+		}
+		how := c.Occlusion
+		if how == "" {
+			how = nli.Delete
+		}
+		attrs, err := c.Scorer.Attribute(fp, how)
+		if err != nil {
+			return nil, st, fmt.Errorf("attribution: %w", err)
+		}
+		for j, k := range flagged {
+			ref := refs[k]
+			rec := &recs[ref.reply]
+			fact := p.Facts[ref.fact]
+			idx := textpos.New(rec.Text)
+			rec.Verdict = Contradiction
+			rec.Findings = append(rec.Findings, Finding{
+				FactID: fact.ID,
+				Fact:   fact.Text,
+				Sentence: SentenceRef{
+					Start: idx.Runes(ref.sent.Start), End: idx.Runes(ref.sent.End),
+					ByteStart: ref.sent.Start, ByteEnd: ref.sent.End,
+					Text: rec.Text[ref.sent.Start:ref.sent.End],
+				},
+				Probs:     Probs{Prob(probs[k].Contradiction), Prob(probs[k].Entailment), Prob(probs[k].Neutral)},
+				Spans:     penaltySpans(rec.Text, idx, ref.sent.Start, attrs[j].Words, c.spanRule()),
+				Truncated: attrs[j].Truncated,
+				order:     ref.fact,
+			})
+		}
+	}
+	for i := range recs {
+		slices.SortStableFunc(recs[i].Findings, func(a, b Finding) int {
+			return cmp.Or(cmp.Compare(b.Probs.Contradiction, a.Probs.Contradiction),
+				cmp.Compare(a.order, b.order), cmp.Compare(a.Sentence.Start, b.Sentence.Start))
+		})
+	}
+	return recs, st, nil
+}
+
+// penaltySpans turns word weights of one sentence (offsets relative to the sentence at byte offset
+// base of text) into merged spans over text, heaviest first.
+func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeight, rule SpanRule) []PenaltySpan {
+	top := 0.0
+	for _, w := range words {
+		top = max(top, w.Weight)
+	}
+	if top < rule.MinWeight || top == 0 {
+		return nil
+	}
+	var spans []PenaltySpan
+	open := false
+	for _, w := range words {
+		culprit := w.Weight >= rule.MinWeight && w.Weight >= rule.Relative*top
+		if !culprit {
+			open = false
+			continue
+		}
+		s, e := base+w.Start, base+w.End
+		if open {
+			last := &spans[len(spans)-1]
+			last.ByteEnd = e
+			last.Weight = max(last.Weight, Prob(w.Weight))
+			continue
+		}
+		spans = append(spans, PenaltySpan{ByteStart: s, ByteEnd: e, Weight: Prob(w.Weight)})
+		open = true
+	}
+	for i := range spans {
+		sp := &spans[i]
+		sp.Start, sp.End = idx.Runes(sp.ByteStart), idx.Runes(sp.ByteEnd)
+		sp.Text = text[sp.ByteStart:sp.ByteEnd]
+	}
+	slices.SortStableFunc(spans, func(a, b PenaltySpan) int {
+		return cmp.Or(cmp.Compare(b.Weight, a.Weight), cmp.Compare(a.Start, b.Start))
+	})
+	return spans
+}
+
+// RunOptions tune Run.
+type RunOptions struct {
+	// Chunk is how many replies are scored together (0: 64); memory stays bounded by it.
+	Chunk int
+	// Progress, if set, is called with the number of replies done after each chunk.
+	Progress func(done int)
+}
+
+// Run checks every reply of rr and writes one record per reply to w, in input order, chunk by chunk.
+// It stops early only for read, write or scoring failures of the whole run, or when ctx is done.
+func (c *Checker) Run(ctx context.Context, p *Profile, rr *ReplyReader, w *RecordWriter, opts RunOptions) (Stats, error) {
+	start := time.Now()
+	chunk := opts.Chunk
+	if chunk <= 0 {
+		chunk = 64
+	}
+	var total Stats
+	batch := make([]Reply, 0, chunk)
+	flush := func() error {
+		if len(batch) == 0 {
+			return nil
+		}
+		recs, st, err := c.Check(p, batch)
+		if err != nil {
+			return err
+		}
+		for i := range recs {
+			if err := w.Write(&recs[i]); err != nil {
+				return err
+			}
+		}
+		total.Replies += st.Replies
+		total.Contradictions += st.Contradictions
+		total.Errors += st.Errors
+		total.Pairs += st.Pairs
+		total.Attributed += st.Attributed
+		batch = batch[:0]
+		if opts.Progress != nil {
+			opts.Progress(total.Replies)
+		}
+		return nil
+	}
+	for {
+		if err := ctx.Err(); err != nil {
+			return total, err
+		}
+		r, err := rr.Next()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return total, err
+		}
+		batch = append(batch, r)
+		if len(batch) == chunk {
+			if err := flush(); err != nil {
+				return total, err
+			}
+		}
+	}
+	if err := flush(); err != nil {
+		return total, err
+	}
+	total.Elapsed = time.Since(start)
+	return total, w.Flush()
+}

@@ -1,0 +1,148 @@
+package profile
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/gainsay/gainsay/internal/textpos"
+	"github.com/gainsay/gainsay/nli"
+)
+
+// tinyModel is nli's test model whose contradiction logit is 4 per "never" in the hypothesis (see
+// scripts/reference/make_tiny_models.py); the expected numbers below follow from its softmax.
+func tinyModel(t *testing.T) *nli.Model {
+	t.Helper()
+	m, err := nli.OpenDir("../nli/testdata/tiny-wordpiece", nli.Options{})
+	require.NoError(t, err, "the ONNX Runtime library is needed: run scripts/install-onnxruntime")
+	t.Cleanup(func() { m.Close() })
+	return m
+}
+
+func softmaxC(c, e, n float64) float64 {
+	return math.Exp(c) / (math.Exp(c) + math.Exp(e) + math.Exp(n))
+}
+
+var maren = &Profile{Character: "maren", File: "maren.yaml", Facts: []Fact{
+	{ID: "home", Text: "I live in the lighthouse on Gull Point.", Line: 3},
+	{ID: "swim", Text: "I swim in the sea every morning.", Line: 5},
+}}
+
+func TestCheckWithTinyModel(t *testing.T) {
+	c := &Checker{Scorer: tinyModel(t), Model: "tiny"}
+	replies := []Reply{
+		{ID: "r1", Text: "Ich wohne in Zürich. I have never seen the sea.", Line: 1},
+		{ID: "r2", Text: "I like boats.", Line: 2},
+		{ID: "r3", Line: 3, Err: errors.New("r.jsonl:3: text: missing")},
+		{ID: "r4", Text: "   ", Line: 4},
+	}
+	recs, st, err := c.Check(maren, replies)
+	require.NoError(t, err)
+	require.Len(t, recs, 4)
+	assert.Equal(t, Stats{Replies: 4, Contradictions: 1, Errors: 1, Pairs: 6, Attributed: 2}, Stats{
+		Replies: st.Replies, Contradictions: st.Contradictions, Errors: st.Errors, Pairs: st.Pairs, Attributed: st.Attributed})
+
+	r1 := recs[0]
+	assert.Equal(t, Contradiction, r1.Verdict)
+	high, low := softmaxC(4, 0, 1), softmaxC(0, 0, 1)
+	assert.InDelta(t, high, float64(r1.Score), 1e-6)
+	require.Len(t, r1.Findings, 2, "both facts, the same sentence")
+	assert.Equal(t, []string{"home", "swim"}, []string{r1.Findings[0].FactID, r1.Findings[1].FactID}, "ties keep profile order")
+	f := r1.Findings[0]
+	// "Ich wohne in Zürich. " is 21 code points but 22 bytes (ü).
+	assert.Equal(t, SentenceRef{Start: 21, End: 47, ByteStart: 22, ByteEnd: 48, Text: "I have never seen the sea."}, f.Sentence)
+	require.Len(t, f.Spans, 1)
+	assert.Equal(t, PenaltySpan{Start: 28, End: 33, ByteStart: 29, ByteEnd: 34, Text: "never", Weight: f.Spans[0].Weight}, f.Spans[0])
+	assert.InDelta(t, high-low, float64(f.Spans[0].Weight), 1e-6)
+	assert.Equal(t, []rune(r1.Text)[28:33], []rune("never"), "code-point offsets index the text as Python does")
+
+	assert.Equal(t, Consistent, recs[1].Verdict)
+	assert.InDelta(t, low, float64(recs[1].Score), 1e-6)
+	assert.Empty(t, recs[1].Findings)
+
+	assert.Equal(t, Failed, recs[2].Verdict)
+	assert.Equal(t, "r.jsonl:3: text: missing", recs[2].Error)
+	assert.Equal(t, Consistent, recs[3].Verdict, "a blank reply has nothing to contradict")
+}
+
+func TestThresholdAndSpanRule(t *testing.T) {
+	m := tinyModel(t)
+	reply := []Reply{{ID: "r", Text: "I have never seen the sea.", Line: 1}}
+	high := softmaxC(4, 0, 1)
+	c := &Checker{Scorer: m, Threshold: high + 0.01}
+	recs, _, err := c.Check(maren, reply)
+	require.NoError(t, err)
+	assert.Equal(t, Consistent, recs[0].Verdict, "below a threshold above its score")
+	c = &Checker{Scorer: m, Spans: SpanRule{MinWeight: 0.99, Relative: 0.5}}
+	recs, _, err = c.Check(maren, reply)
+	require.NoError(t, err)
+	assert.Equal(t, Contradiction, recs[0].Verdict)
+	assert.Empty(t, recs[0].Findings[0].Spans, "no word moves the probability by 0.99")
+}
+
+func TestPenaltySpansMergeAdjacent(t *testing.T) {
+	text := "We never ever sail. Ok"
+	words := []nli.WordWeight{{0, 2, 0.0}, {3, 8, 0.6}, {9, 13, 0.4}, {14, 18, 0.01}, {18, 19, 0.29}}
+	got := penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
+	require.Len(t, got, 1)
+	assert.Equal(t, PenaltySpan{Start: 3, End: 13, ByteStart: 3, ByteEnd: 13, Text: "never ever", Weight: 0.6}, got[0])
+
+	words = []nli.WordWeight{{0, 2, 0.5}, {3, 8, 0.0}, {9, 13, 0.9}}
+	got = penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
+	require.Len(t, got, 2)
+	assert.Equal(t, []string{"ever", "We"}, []string{got[0].Text, got[1].Text}, "heaviest first")
+}
+
+// failingScorer fails any batch that holds the word "boom".
+type failingScorer struct{ inner Scorer }
+
+func (f failingScorer) Predict(p []nli.Pair) ([]nli.Probs, error) {
+	for _, x := range p {
+		if strings.Contains(x.Hypothesis, "boom") {
+			return nil, errors.New("the model broke")
+		}
+	}
+	return f.inner.Predict(p)
+}
+
+func (f failingScorer) Attribute(p []nli.Pair, how nli.Occlusion) ([]nli.Attribution, error) {
+	return f.inner.Attribute(p, how)
+}
+
+func TestScorerFailureIsolatesReply(t *testing.T) {
+	c := &Checker{Scorer: failingScorer{tinyModel(t)}}
+	recs, st, err := c.Check(maren, []Reply{
+		{ID: "a", Text: "I have never seen the sea."}, {ID: "b", Text: "boom"}, {ID: "c", Text: "Fine."},
+	})
+	require.NoError(t, err)
+	assert.Equal(t, []Verdict{Contradiction, Failed, Consistent}, []Verdict{recs[0].Verdict, recs[1].Verdict, recs[2].Verdict})
+	assert.Contains(t, recs[1].Error, "the model broke")
+	assert.Equal(t, 1, st.Errors)
+}
+
+func TestRunStreamsEveryReply(t *testing.T) {
+	in := strings.Repeat(`{"id":"x","text":"I have never seen the sea."}`+"\n"+`bad`+"\n", 50)
+	var out bytes.Buffer
+	c := &Checker{Scorer: tinyModel(t)}
+	calls := 0
+	st, err := c.Run(context.Background(), maren, NewReplyReader(strings.NewReader(in), "r.jsonl", FormatJSONL, 0),
+		NewRecordWriter(&out), RunOptions{Chunk: 7, Progress: func(int) { calls++ }})
+	require.NoError(t, err)
+	assert.Equal(t, 100, st.Replies)
+	assert.Equal(t, 50, st.Errors)
+	assert.Equal(t, 15, calls, "ceil(100 / 7) chunks")
+	recs, err := ReadAllRecords(&out, "out")
+	require.NoError(t, err)
+	require.Len(t, recs, 100)
+	for i, r := range recs {
+		assert.Equal(t, i+1, r.Line, "input order")
+	}
+}
+
+func textposIndex(s string) textpos.Index { return textpos.New(s) }

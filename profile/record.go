@@ -1,0 +1,199 @@
+package profile
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+)
+
+// Verdict is the judgement on a whole reply.
+type Verdict string
+
+const (
+	Contradiction Verdict = "contradiction"
+	Consistent    Verdict = "consistent"
+	Failed        Verdict = "error"
+)
+
+// Prob is a probability or weight, written with at most 6 decimals so that output bytes do not depend
+// on the last bits of floating-point arithmetic.
+type Prob float64
+
+// MarshalJSON writes p rounded to 6 decimals, in the shortest form.
+func (p Prob) MarshalJSON() ([]byte, error) {
+	v := math.Round(float64(p)*1e6) / 1e6
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil, fmt.Errorf("probability %v is not a number", float64(p))
+	}
+	if v == 0 {
+		v = 0 // no "-0"
+	}
+	return strconv.AppendFloat(nil, v, 'f', -1, 64), nil
+}
+
+// Probs are a pair's NLI probabilities in a record.
+type Probs struct {
+	Contradiction Prob `json:"contradiction"`
+	Entailment    Prob `json:"entailment"`
+	Neutral       Prob `json:"neutral"`
+}
+
+// Record is the output for one input reply: the verdict, the highest contradiction probability over
+// its (fact, sentence) pairs, and a finding for every pair at or above the threshold.
+type Record struct {
+	ID       string    `json:"id"`
+	Verdict  Verdict   `json:"verdict"`
+	Score    Prob      `json:"score"`
+	Findings []Finding `json:"findings"`
+	Error    string    `json:"error,omitempty"`
+	// Text is the reply itself: offsets refer to it, and align and report need it.
+	Text    string `json:"text"`
+	Context string `json:"context,omitempty"`
+	// Line is the reply's line in its input file.
+	Line      int    `json:"line"`
+	Model     string `json:"model,omitempty"`
+	Threshold Prob   `json:"threshold"`
+	// Extra carries the input fields gainsay does not know, unchanged.
+	Extra map[string]json.RawMessage `json:"extra,omitempty"`
+}
+
+// Finding is one (fact, sentence) pair judged a contradiction.
+type Finding struct {
+	FactID   string      `json:"fact_id"`
+	Fact     string      `json:"fact"`
+	Sentence SentenceRef `json:"sentence"`
+	Probs    Probs       `json:"probs"`
+	// Spans are the words that drive the contradiction, heaviest first.
+	Spans []PenaltySpan `json:"spans"`
+	// Truncated: the pair was longer than the model takes and was cut.
+	Truncated bool `json:"truncated,omitempty"`
+
+	order int // the fact's place in the profile, for a stable order of findings
+}
+
+// SentenceRef is a sentence of the reply. Start and End count code points (Python str indexes, end
+// exclusive); ByteStart and ByteEnd count UTF-8 bytes.
+type SentenceRef struct {
+	Start     int    `json:"start"`
+	End       int    `json:"end"`
+	ByteStart int    `json:"byte_start"`
+	ByteEnd   int    `json:"byte_end"`
+	Text      string `json:"text"`
+}
+
+// PenaltySpan is a run of culprit words in the reply and its weight: the largest drop in contradiction
+// probability when one of its words is left out. Offsets as in SentenceRef.
+type PenaltySpan struct {
+	Start     int    `json:"start"`
+	End       int    `json:"end"`
+	ByteStart int    `json:"byte_start"`
+	ByteEnd   int    `json:"byte_end"`
+	Text      string `json:"text"`
+	Weight    Prob   `json:"weight"`
+}
+
+// RecordWriter writes records as JSON Lines.
+type RecordWriter struct {
+	w *bufio.Writer
+}
+
+// NewRecordWriter writes to w; call Flush at the end.
+func NewRecordWriter(w io.Writer) *RecordWriter { return &RecordWriter{w: bufio.NewWriter(w)} }
+
+// Write writes one record as one line.
+func (rw *RecordWriter) Write(r *Record) error {
+	b, err := MarshalRecord(r)
+	if err != nil {
+		return err
+	}
+	if _, err := rw.w.Write(b); err != nil {
+		return err
+	}
+	return rw.w.WriteByte('\n')
+}
+
+// Flush writes buffered records out.
+func (rw *RecordWriter) Flush() error { return rw.w.Flush() }
+
+// MarshalRecord encodes a record without HTML escaping, findings as [] rather than null.
+func MarshalRecord(r *Record) ([]byte, error) {
+	if r.Findings == nil {
+		r.Findings = []Finding{}
+	}
+	for i := range r.Findings {
+		if r.Findings[i].Spans == nil {
+			r.Findings[i].Spans = []PenaltySpan{}
+		}
+	}
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(r); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(buf.Bytes(), "\n"), nil
+}
+
+// RecordReader reads records written by gainsay check.
+type RecordReader struct {
+	r    *bufio.Reader
+	name string
+	line int
+}
+
+// NewRecordReader reads JSON Lines records from r; name is used in errors.
+func NewRecordReader(r io.Reader, name string) *RecordReader {
+	return &RecordReader{r: bufio.NewReaderSize(r, 1<<16), name: name}
+}
+
+// Next returns the next record or io.EOF. A line that is not a record is an *InputError.
+func (rr *RecordReader) Next() (Record, error) {
+	for {
+		raw, err := rr.r.ReadBytes('\n')
+		if len(raw) == 0 && err != nil {
+			if errors.Is(err, io.EOF) {
+				return Record{}, io.EOF
+			}
+			return Record{}, fmt.Errorf("%s: %w", rr.name, err)
+		}
+		rr.line++
+		raw = bytes.TrimSpace(raw)
+		if len(raw) == 0 {
+			continue
+		}
+		var rec Record
+		dec := json.NewDecoder(bytes.NewReader(raw))
+		if err := dec.Decode(&rec); err != nil {
+			return Record{}, inputErr(rr.name, rr.line, "", "not a gainsay record: %v", err)
+		}
+		switch rec.Verdict {
+		case Contradiction, Consistent, Failed:
+		case "":
+			return Record{}, inputErr(rr.name, rr.line, "verdict", "missing (is this the output of gainsay check?)")
+		default:
+			return Record{}, inputErr(rr.name, rr.line, "verdict", "%q is not contradiction, consistent or error", rec.Verdict)
+		}
+		return rec, nil
+	}
+}
+
+// ReadAllRecords reads every record of r.
+func ReadAllRecords(r io.Reader, name string) ([]Record, error) {
+	rr := NewRecordReader(r, name)
+	var out []Record
+	for {
+		rec, err := rr.Next()
+		if errors.Is(err, io.EOF) {
+			return out, nil
+		}
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, rec)
+	}
+}

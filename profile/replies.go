@@ -1,0 +1,162 @@
+package profile
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"path/filepath"
+	"strings"
+	"unicode/utf8"
+)
+
+// Reply is one sampled reply to check. A reply that could not be read has Err set: it still gets its
+// own output record, so that every input line is accounted for.
+type Reply struct {
+	ID      string
+	Text    string
+	Context string
+	// Extra holds the fields gainsay does not know, kept verbatim and passed through to the record.
+	Extra map[string]json.RawMessage
+	Line  int
+	Err   error
+}
+
+// DefaultMaxReplyChars is the default limit on a reply's length, in code points.
+const DefaultMaxReplyChars = 4000
+
+// ReplyFormat picks the replies format from a file name: JSON Lines for .jsonl, .ndjson and .json and
+// for standard input ("-"), plain text for .txt. Anything else needs an explicit format.
+func ReplyFormat(name string) (Format, error) {
+	if name == "-" {
+		return FormatJSONL, nil
+	}
+	switch strings.ToLower(filepath.Ext(name)) {
+	case ".jsonl", ".ndjson", ".json":
+		return FormatJSONL, nil
+	case ".txt", ".text":
+		return FormatText, nil
+	}
+	return "", inputErr(name, 0, "", "cannot tell the replies format from the extension %q; use .jsonl or .txt, or name the format", filepath.Ext(name))
+}
+
+// ReplyReader reads replies one at a time: JSON Lines (one object a line with id and text, optional
+// context, other fields kept) or plain text (one reply a line, id "line-N"). Blank lines are skipped.
+type ReplyReader struct {
+	r        *bufio.Reader
+	name     string
+	format   Format
+	maxChars int
+	line     int
+}
+
+// NewReplyReader reads from r; name is used in errors. maxChars limits a reply's length in code points
+// (0: DefaultMaxReplyChars).
+func NewReplyReader(r io.Reader, name string, format Format, maxChars int) *ReplyReader {
+	if maxChars <= 0 {
+		maxChars = DefaultMaxReplyChars
+	}
+	return &ReplyReader{r: bufio.NewReaderSize(r, 1<<16), name: name, format: format, maxChars: maxChars}
+}
+
+// Next returns the next reply, or io.EOF at the end. Other errors are read failures of the underlying
+// reader; bad lines come back as replies with Err set.
+func (rr *ReplyReader) Next() (Reply, error) {
+	for {
+		raw, err := rr.r.ReadBytes('\n')
+		if len(raw) == 0 && err != nil {
+			if errors.Is(err, io.EOF) {
+				return Reply{}, io.EOF
+			}
+			return Reply{}, fmt.Errorf("%s: %w", rr.name, err)
+		}
+		rr.line++
+		if rr.line == 1 {
+			raw = trimBOM(raw)
+		}
+		raw = bytes.TrimRight(raw, "\r\n")
+		if len(bytes.TrimSpace(raw)) == 0 {
+			continue
+		}
+		return rr.parse(raw), nil
+	}
+}
+
+func (rr *ReplyReader) fail(rep Reply, field, format string, args ...any) Reply {
+	rep.Err = inputErr(rr.name, rr.line, field, format, args...)
+	return rep
+}
+
+func (rr *ReplyReader) parse(raw []byte) Reply {
+	rep := Reply{Line: rr.line}
+	if !utf8.Valid(raw) {
+		// encoding/json would quietly turn invalid bytes into U+FFFD; say so instead.
+		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", firstInvalidUTF8(raw)+1)
+	}
+	if rr.format == FormatText {
+		rep.ID = fmt.Sprintf("line-%d", rr.line)
+		rep.Text = string(raw)
+		return rr.checkLength(rep)
+	}
+	var fields map[string]json.RawMessage
+	if err := json.Unmarshal(raw, &fields); err != nil {
+		return rr.fail(rep, "", "not a JSON object: %v", err)
+	}
+	if idRaw, ok := fields["id"]; ok {
+		id, err := scalarString(idRaw)
+		if err != nil {
+			return rr.fail(rep, "id", "%v", err)
+		}
+		rep.ID = id
+	}
+	if rep.ID == "" {
+		return rr.fail(rep, "id", "missing or empty")
+	}
+	textRaw, ok := fields["text"]
+	if !ok {
+		return rr.fail(rep, "text", "missing")
+	}
+	if err := json.Unmarshal(textRaw, &rep.Text); err != nil || bytes.Equal(bytes.TrimSpace(textRaw), []byte("null")) {
+		return rr.fail(rep, "text", "must be a string")
+	}
+	if c, ok := fields["context"]; ok && !bytes.Equal(bytes.TrimSpace(c), []byte("null")) {
+		if err := json.Unmarshal(c, &rep.Context); err != nil {
+			return rr.fail(rep, "context", "must be a string")
+		}
+	}
+	for k, v := range fields {
+		switch k {
+		case "id", "text", "context":
+		default:
+			if rep.Extra == nil {
+				rep.Extra = map[string]json.RawMessage{}
+			}
+			rep.Extra[k] = v
+		}
+	}
+	return rr.checkLength(rep)
+}
+
+func (rr *ReplyReader) checkLength(rep Reply) Reply {
+	if n := utf8.RuneCountInString(rep.Text); n > rr.maxChars {
+		return rr.fail(rep, "text", "%d characters, over the limit of %d", n, rr.maxChars)
+	}
+	return rep
+}
+
+// scalarString accepts a JSON string or number as an id.
+func scalarString(raw json.RawMessage) (string, error) {
+	var s string
+	if err := json.Unmarshal(raw, &s); err == nil {
+		return s, nil
+	}
+	var n json.Number
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.UseNumber()
+	if err := dec.Decode(&n); err == nil {
+		return n.String(), nil
+	}
+	return "", errors.New("must be a string or a number")
+}
