@@ -88,12 +88,12 @@ func TestThresholdAndSpanRule(t *testing.T) {
 
 func TestPenaltySpansMergeAdjacent(t *testing.T) {
 	text := "We never ever sail. Ok"
-	words := []nli.WordWeight{{0, 2, 0.0}, {3, 8, 0.6}, {9, 13, 0.4}, {14, 18, 0.01}, {18, 19, 0.29}}
+	words := []nli.WordWeight{{Start: 0, End: 2, Weight: 0.0}, {Start: 3, End: 8, Weight: 0.6}, {Start: 9, End: 13, Weight: 0.4}, {Start: 14, End: 18, Weight: 0.01}, {Start: 18, End: 19, Weight: 0.29}}
 	got := penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
 	require.Len(t, got, 1)
 	assert.Equal(t, PenaltySpan{Start: 3, End: 13, ByteStart: 3, ByteEnd: 13, Text: "never ever", Weight: 0.6}, got[0])
 
-	words = []nli.WordWeight{{0, 2, 0.5}, {3, 8, 0.0}, {9, 13, 0.9}}
+	words = []nli.WordWeight{{Start: 0, End: 2, Weight: 0.5}, {Start: 3, End: 8, Weight: 0.0}, {Start: 9, End: 13, Weight: 0.9}}
 	got = penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
 	require.Len(t, got, 2)
 	assert.Equal(t, []string{"ever", "We"}, []string{got[0].Text, got[1].Text}, "heaviest first")

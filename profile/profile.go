@@ -2,6 +2,7 @@ package profile
 
 import (
 	"bytes"
+	"cmp"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -27,6 +28,8 @@ type Fact struct {
 	Text string   `json:"text" yaml:"text"`
 	Tags []string `json:"tags,omitempty" yaml:"tags,omitempty"`
 	Line int      `json:"-" yaml:"-"`
+
+	idLine, textLine int // where the id and text values stand, for messages
 }
 
 // Format names an input format.
@@ -172,11 +175,13 @@ func parseStructuredProfile(name string, data []byte) (*Profile, error) {
 					return nil, inputErr(name, val.Line, field+".id", "must be a string")
 				}
 				f.ID = strings.TrimSpace(val.Value)
+				f.idLine = val.Line
 			case "text":
 				if val.Kind != yaml.ScalarNode || val.Tag == "!!null" {
 					return nil, inputErr(name, val.Line, field+".text", "must be a string")
 				}
 				f.Text = strings.TrimSpace(val.Value)
+				f.textLine = val.Line
 			case "tags":
 				if val.Kind != yaml.SequenceNode {
 					return nil, inputErr(name, val.Line, field+".tags", "must be a list of strings")
@@ -209,15 +214,15 @@ func (p *Profile) validate() error {
 	for i, f := range p.Facts {
 		field := fmt.Sprintf("facts[%d]", i)
 		if f.ID == "" {
-			return inputErr(p.File, f.Line, field+".id", "empty")
+			return inputErr(p.File, cmp.Or(f.idLine, f.Line), field+".id", "empty")
 		}
 		if f.Text == "" {
-			return inputErr(p.File, f.Line, field+".text", "empty")
+			return inputErr(p.File, cmp.Or(f.textLine, f.Line), field+".text", "empty")
 		}
 		if prev, dup := ids[f.ID]; dup {
-			return inputErr(p.File, f.Line, field+".id", "duplicate id %q (also on line %d)", f.ID, prev)
+			return inputErr(p.File, cmp.Or(f.idLine, f.Line), field+".id", "duplicate id %q (also on line %d)", f.ID, prev)
 		}
-		ids[f.ID] = f.Line
+		ids[f.ID] = cmp.Or(f.idLine, f.Line)
 	}
 	return nil
 }

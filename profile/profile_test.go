@@ -16,7 +16,10 @@ func TestParseProfile(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, "maren", p.Character)
 	require.Len(t, p.Facts, 2)
-	assert.Equal(t, Fact{ID: "home", Text: "I live in the lighthouse.", Tags: []string{"place"}, Line: 3}, p.Facts[0])
+	assert.Equal(t, "home", p.Facts[0].ID)
+	assert.Equal(t, "I live in the lighthouse.", p.Facts[0].Text)
+	assert.Equal(t, []string{"place"}, p.Facts[0].Tags)
+	assert.Equal(t, 3, p.Facts[0].Line)
 	assert.Equal(t, 6, p.Facts[1].Line)
 
 	jsonOK := `{"character": "maren", "facts": [{"id": 1, "text": "I live in the lighthouse."}]}`
@@ -42,7 +45,7 @@ func TestParseProfileErrors(t *testing.T) {
 		{"p.yaml", "character: c\nfacts: nope\n", FormatYAML, "p.yaml:2: facts: must be a list"},
 		{"p.yaml", "character: c\nfacts:\n  - id: a\n", FormatYAML, "p.yaml:3: facts[0].text: missing"},
 		{"p.yaml", "character: c\nfacts:\n  - text: x\n", FormatYAML, "p.yaml:3: facts[0].id: missing"},
-		{"p.yaml", "character: c\nfacts:\n  - id: a\n    text: '  '\n", FormatYAML, "p.yaml:3: facts[0].text: empty"},
+		{"p.yaml", "character: c\nfacts:\n  - id: a\n    text: '  '\n", FormatYAML, "p.yaml:4: facts[0].text: empty"},
 		{"p.yaml", "character: c\nfacts:\n  - id: a\n    text: x\n  - id: a\n    text: y\n", FormatYAML, `p.yaml:5: facts[1].id: duplicate id "a" (also on line 3)`},
 		{"p.yaml", "character: c\nfacts:\n  - id: a\n    text: [1, 2]\n", FormatYAML, "p.yaml:4: facts[0].text: must be a string"},
 		{"p.yaml", "character: c\nfacts:\n  - id: a\n    text: caf\xe9\n", FormatYAML, "p.yaml:4: invalid UTF-8"},
