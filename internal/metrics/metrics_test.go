@@ -15,10 +15,10 @@ import (
 // scripts/reference/metrics_reference.py, re-checked by the Python tests in CI.
 type reference struct {
 	Classification struct {
-		Truth, Pred, Support     []int
-		Confusion                [][]int
-		Accuracy                 float64
-		Precision, Recall, F1    []float64
+		Truth, Pred, Support  []int
+		Confusion             [][]int
+		Accuracy              float64
+		Precision, Recall, F1 []float64
 	}
 	AveragePrecision []struct {
 		Truth []int
