@@ -166,3 +166,35 @@ func (m *Model) attributeOne(p Pair, how Occlusion) (Attribution, error) {
 	}
 	return a, nil
 }
+
+// ScoreKept scores a pair once per mask, keeping the hypothesis words (as Words numbers them) whose
+// mask entry is true and deleting the others. Evaluation uses it for the comprehensiveness and
+// sufficiency of a rationale.
+func (m *Model) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
+	prem, err := m.tok.Tokenize(p.Premise)
+	if err != nil {
+		return nil, err
+	}
+	hyp, err := m.tok.Tokenize(p.Hypothesis)
+	if err != nil {
+		return nil, err
+	}
+	words := Words(p.Hypothesis, hyp)
+	encs := make([]Encoding, len(keep))
+	for k, mask := range keep {
+		if len(mask) != len(words) {
+			return nil, fmt.Errorf("mask %d has %d entries for %d words", k, len(mask), len(words))
+		}
+		var variant []Piece
+		last := 0
+		for w, word := range words {
+			if mask[w] {
+				variant = append(variant, hyp[last:word.end]...)
+			}
+			last = word.end
+		}
+		variant = append(variant, hyp[last:]...) // pieces after the last word (spaces) stay
+		encs[k] = m.tok.Assemble(prem, variant, m.maxLen)
+	}
+	return m.PredictEncoded(encs)
+}

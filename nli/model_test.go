@@ -165,3 +165,19 @@ func TestOpenErrors(t *testing.T) {
 		})
 	}
 }
+
+func TestScoreKept(t *testing.T) {
+	m := openTiny(t, "tiny-wordpiece")
+	pair := Pair{"I live on the coast.", "I do not and never will."}
+	// Words: I do not and never will .
+	all := []bool{true, true, true, true, true, true, true}
+	noNever := []bool{true, true, true, true, false, true, true}
+	onlyNot := []bool{false, false, true, false, false, false, false}
+	got, err := m.ScoreKept(pair, [][]bool{all, noNever, onlyNot})
+	require.NoError(t, err)
+	assertProbs(t, probsOf(6, 0, 1), got[0], "all words")
+	assertProbs(t, probsOf(2, 0, 1), got[1], "without never")
+	assertProbs(t, probsOf(2, 0, 1), got[2], "only not")
+	_, err = m.ScoreKept(pair, [][]bool{{true}})
+	assert.ErrorContains(t, err, "1 entries for 7 words")
+}

@@ -26,6 +26,22 @@ type SpanRule struct {
 	Relative  float64
 }
 
+// Culprits marks the words the rule keeps, given every word's weight.
+func (r SpanRule) Culprits(weights []float64) []bool {
+	top := 0.0
+	for _, w := range weights {
+		top = max(top, w)
+	}
+	out := make([]bool, len(weights))
+	if top == 0 || top < r.MinWeight {
+		return out
+	}
+	for i, w := range weights {
+		out[i] = w >= r.MinWeight && w >= r.Relative*top
+	}
+	return out
+}
+
 // DefaultSpanRule keeps words that carry at least half of the strongest word's effect and move the
 // contradiction probability by 0.05 or more.
 var DefaultSpanRule = SpanRule{MinWeight: 0.05, Relative: 0.5}
@@ -190,18 +206,15 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 // penaltySpans turns word weights of one sentence (offsets relative to the sentence at byte offset
 // base of text) into merged spans over text, heaviest first.
 func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeight, rule SpanRule) []PenaltySpan {
-	top := 0.0
-	for _, w := range words {
-		top = max(top, w.Weight)
+	weights := make([]float64, len(words))
+	for i, w := range words {
+		weights[i] = w.Weight
 	}
-	if top < rule.MinWeight || top == 0 {
-		return nil
-	}
+	culprits := rule.Culprits(weights)
 	var spans []PenaltySpan
 	open := false
-	for _, w := range words {
-		culprit := w.Weight >= rule.MinWeight && w.Weight >= rule.Relative*top
-		if !culprit {
+	for i, w := range words {
+		if !culprits[i] {
 			open = false
 			continue
 		}

@@ -8,6 +8,7 @@ The split follows shared/data/SOURCES.md and is the one the model card documents
   integer, are divisible by 5 (about one fifth); the rest train.
 * Breaking NLI: the categories in BREAKING_HELD_OUT are held out, the others train.
 
+MultiNLI fields that the TaxiNLI file quotes twice are unquoted once more (unquote_twice).
 Rows labelled with anything but the three classes ('-' in SNLI: no annotator majority) are dropped.
 """
 from __future__ import annotations
@@ -48,6 +49,17 @@ def detok(s: str) -> str:
     return s
 
 
+def unquote_twice(s: str) -> str:
+    """Some TaxiNLI fields were CSV-quoted twice ('" ""You're not..."" he said."'); when a whole field
+    is itself one valid quoted CSV field, take its content."""
+    s = s.strip()
+    if len(s) >= 2 and s[0] == '"' and s[-1] == '"':
+        inner = s[1:-1]
+        if '"' not in inner.replace('""', ""):
+            return inner.replace('""', '"').strip()
+    return s
+
+
 def mnli_held_out(pair_id: str) -> bool:
     return int(hashlib.sha256(pair_id.encode("utf-8")).hexdigest()[:8], 16) % 5 == 0
 
@@ -72,7 +84,7 @@ def mnli(held_out: bool) -> list[Pair]:
     with open(path, encoding="utf-8", newline="") as f:
         rows = list(csv.DictReader(f, delimiter="\t"))
     return [
-        Pair(r["prem"].strip(), r["hyp"].strip(), r["label"], f"mnli:{r['pairID']}")
+        Pair(unquote_twice(r["prem"]), unquote_twice(r["hyp"]), r["label"], f"mnli:{r['pairID']}")
         for r in rows
         if r["label"] in LABELS and mnli_held_out(r["pairID"]) == held_out
     ]

@@ -1,0 +1,110 @@
+"""Evaluate an exported model folder on the held-out data with the onnxruntime and tokenizers Python
+packages, independently of gainsay's Go code. Its numbers go into the model card.
+
+    python scripts/train/evaluate.py --model models/builtin --out models/builtin/eval.json
+
+Per held-out set (nli_data.held_out_sets): accuracy, per-class precision/recall/F1 and the confusion
+matrix (scikit-learn), and the contradiction class's precision and recall. With --sample it also writes
+the fixed CI sample (every k-th pair of each set) with its own figures, which gainsay's Go test repeats.
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import os
+
+import numpy as np
+import onnxruntime as ort
+from sklearn.metrics import confusion_matrix, precision_recall_fscore_support
+from tokenizers import Tokenizer
+
+import nli_data
+
+LABELS = ["contradiction", "entailment", "neutral"]
+
+
+def load(model_dir: str):
+    tk = Tokenizer.from_file(os.path.join(model_dir, "tokenizer.json"))
+    tk.no_padding()
+    tk.no_truncation()
+    so = ort.SessionOptions()
+    so.intra_op_num_threads = 2
+    sess = ort.InferenceSession(os.path.join(model_dir, "model.onnx"), so, providers=["CPUExecutionProvider"])
+    with open(os.path.join(model_dir, "config.json")) as f:
+        id2label = {int(k): v.lower() for k, v in json.load(f)["id2label"].items()}
+    return tk, sess, id2label
+
+
+def predict(tk, sess, id2label, pairs, batch=32, max_len=512):
+    """Probabilities in LABELS order. Pairs are encoded as gainsay does: premise cut first."""
+    names = [i.name for i in sess.get_inputs()]
+    out = np.zeros((len(pairs), 3))
+    order = sorted(range(len(pairs)), key=lambda i: len(pairs[i].premise) + len(pairs[i].hypothesis))
+    for s in range(0, len(order), batch):
+        idx = order[s : s + batch]
+        encs = [tk.encode(pairs[i].premise, pairs[i].hypothesis) for i in idx]
+        width = max(len(e.ids) for e in encs)
+        feed = {n: np.zeros((len(idx), width), dtype=np.int64) for n in names}
+        for r, e in enumerate(encs):
+            n = len(e.ids)
+            feed["input_ids"][r, :n] = e.ids
+            feed["attention_mask"][r, :n] = 1
+            if "token_type_ids" in feed:
+                feed["token_type_ids"][r, :n] = e.type_ids
+        logits = sess.run(None, feed)[0].astype(np.float64)
+        z = np.exp(logits - logits.max(-1, keepdims=True))
+        p = z / z.sum(-1, keepdims=True)
+        for r, i in enumerate(idx):
+            out[i] = [p[r][[k for k, v in id2label.items() if v == lab][0]] for lab in LABELS]
+    return out
+
+
+def figures(pairs, probs) -> dict:
+    y = [LABELS.index(p.label) for p in pairs]
+    pred = probs.argmax(-1).tolist()
+    p, r, f, s = precision_recall_fscore_support(y, pred, labels=[0, 1, 2], zero_division=0)
+    return {
+        "pairs": len(pairs),
+        "accuracy": float(np.mean(np.array(y) == np.array(pred))),
+        "per_class": {LABELS[k]: {"precision": float(p[k]), "recall": float(r[k]), "f1": float(f[k]), "support": int(s[k])}
+                      for k in range(3)},
+        "confusion": confusion_matrix(y, pred, labels=[0, 1, 2]).tolist(),
+    }
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--model", required=True)
+    ap.add_argument("--out", required=True)
+    ap.add_argument("--sample", help="also write the fixed CI sample (JSON Lines) here")
+    ap.add_argument("--sample-out", help="the sample's figures (JSON)")
+    ap.add_argument("--sample-size", type=int, default=200, help="pairs per set in the CI sample")
+    args = ap.parse_args()
+    tk, sess, id2label = load(args.model)
+    sets = nli_data.held_out_sets()
+    result = {}
+    for name, pairs in sets.items():
+        probs = predict(tk, sess, id2label, pairs)
+        result[name] = figures(pairs, probs)
+        print(name, json.dumps({k: result[name][k] for k in ("pairs", "accuracy")}), flush=True)
+    with open(args.out, "w") as f:
+        json.dump(result, f, indent=1)
+        f.write("\n")
+    if args.sample:
+        rows, sample_result = [], {}
+        for name, pairs in sets.items():
+            step = max(1, len(pairs) // args.sample_size)
+            part = pairs[::step][: args.sample_size]
+            for p in part:
+                rows.append({"set": name, "source": p.source, "premise": p.premise, "hypothesis": p.hypothesis, "label": p.label})
+            sample_result[name] = figures(part, predict(tk, sess, id2label, part))
+        with open(args.sample, "w", encoding="utf-8") as f:
+            for r in rows:
+                f.write(json.dumps(r, ensure_ascii=False) + "\n")
+        with open(args.sample_out, "w") as f:
+            json.dump(sample_result, f, indent=1)
+            f.write("\n")
+
+
+if __name__ == "__main__":
+    main()
