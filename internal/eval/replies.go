@@ -135,4 +135,3 @@ func replyRationale(rec profile.Record, gold []profile.Span) metrics.RationaleIn
 	}
 	return x
 }
-
