@@ -114,28 +114,22 @@ type WordWeight struct {
 	Weight     float64
 }
 
-// Attribute computes leave-one-word-out attribution for each pair: for every hypothesis word, the pair
-// is scored again without it, all variants of a pair in one batched run.
-func (m *Model) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
-	out := make([]Attribution, len(pairs))
-	for i, p := range pairs {
-		a, err := m.attributeOne(p, how)
-		if err != nil {
-			return nil, fmt.Errorf("pair %d: %w", i, err)
-		}
-		out[i] = a
-	}
-	return out, nil
+// Occlusions are the inputs of leave-one-word-out attribution for one pair: the whole pair first, then
+// the pair without each hypothesis word in turn.
+type Occlusions struct {
+	Encodings []Encoding
+	words     []Word
 }
 
-func (m *Model) attributeOne(p Pair, how Occlusion) (Attribution, error) {
+// Occlusions prepares the attribution of one pair.
+func (m *Model) Occlusions(p Pair, how Occlusion) (Occlusions, error) {
 	prem, err := m.tok.Tokenize(p.Premise)
 	if err != nil {
-		return Attribution{}, err
+		return Occlusions{}, err
 	}
 	hyp, err := m.tok.Tokenize(p.Hypothesis)
 	if err != nil {
-		return Attribution{}, err
+		return Occlusions{}, err
 	}
 	words := Words(p.Hypothesis, hyp)
 	encs := make([]Encoding, 0, len(words)+1)
@@ -156,21 +150,83 @@ func (m *Model) attributeOne(p Pair, how Occlusion) (Attribution, error) {
 		}
 		encs = append(encs, m.tok.Assemble(prem, variant, m.maxLen))
 	}
-	probs, err := m.PredictEncoded(encs)
+	return Occlusions{Encodings: encs, words: words}, nil
+}
+
+// Attribution turns the probabilities of o.Encodings, in order, into word weights.
+func (o Occlusions) Attribution(probs []Probs) Attribution {
+	full := probs[0].Contradiction
+	a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: o.Encodings[0].Truncated}
+	for k, w := range o.words {
+		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, full-probs[k+1].Contradiction)}
+	}
+	return a
+}
+
+// Runner runs encoded pairs through a model. *Model is one; gainsay serve's batcher, which merges the
+// work of concurrent requests into shared ONNX Runtime runs, is another.
+type Runner interface {
+	PredictEncoded(encs []Encoding) ([]Probs, error)
+}
+
+// Scorer scores and attributes pairs with a model's tokenizer and a Runner.
+type Scorer struct {
+	Model  *Model
+	Runner Runner
+}
+
+// Predict returns the probabilities of each pair, in order.
+func (s Scorer) Predict(pairs []Pair) ([]Probs, error) {
+	encs, err := s.Model.Encode(pairs)
 	if err != nil {
-		return Attribution{}, err
+		return nil, err
 	}
-	a := Attribution{Contradiction: probs[0].Contradiction, Words: make([]WordWeight, len(words)), Truncated: encs[0].Truncated}
-	for k, w := range words {
-		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, probs[0].Contradiction-probs[k+1].Contradiction)}
+	return s.Runner.PredictEncoded(encs)
+}
+
+// Attribute computes leave-one-word-out attribution for each pair: every hypothesis word is left out
+// in turn and the pair scored again. The variants of all pairs go to the Runner together, so they fill
+// batches.
+func (s Scorer) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
+	occ := make([]Occlusions, len(pairs))
+	var all []Encoding
+	for i, p := range pairs {
+		o, err := s.Model.Occlusions(p, how)
+		if err != nil {
+			return nil, fmt.Errorf("pair %d: %w", i, err)
+		}
+		occ[i] = o
+		all = append(all, o.Encodings...)
 	}
-	return a, nil
+	probs, err := s.Runner.PredictEncoded(all)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Attribution, len(pairs))
+	at := 0
+	for i, o := range occ {
+		n := len(o.Encodings)
+		out[i] = o.Attribution(probs[at : at+n])
+		at += n
+	}
+	return out, nil
+}
+
+// Attribute is Scorer{m, m}.Attribute.
+func (m *Model) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
+	return Scorer{m, m}.Attribute(pairs, how)
 }
 
 // ScoreKept scores a pair once per mask, keeping the hypothesis words (as Words numbers them) whose
 // mask entry is true and deleting the others. Evaluation uses it for the comprehensiveness and
 // sufficiency of a rationale.
 func (m *Model) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
+	return Scorer{m, m}.ScoreKept(p, keep)
+}
+
+// ScoreKept is Model.ScoreKept through the Scorer's Runner.
+func (s Scorer) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
+	m := s.Model
 	prem, err := m.tok.Tokenize(p.Premise)
 	if err != nil {
 		return nil, err
@@ -196,5 +252,5 @@ func (m *Model) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
 		variant = append(variant, hyp[last:]...) // pieces after the last word (spaces) stay
 		encs[k] = m.tok.Assemble(prem, variant, m.maxLen)
 	}
-	return m.PredictEncoded(encs)
+	return s.Runner.PredictEncoded(encs)
 }

@@ -261,13 +261,7 @@ func (m *Model) Encode(pairs []Pair) ([]Encoding, error) {
 }
 
 // Predict returns the probabilities of each pair, in order.
-func (m *Model) Predict(pairs []Pair) ([]Probs, error) {
-	encs, err := m.Encode(pairs)
-	if err != nil {
-		return nil, err
-	}
-	return m.PredictEncoded(encs)
-}
+func (m *Model) Predict(pairs []Pair) ([]Probs, error) { return Scorer{m, m}.Predict(pairs) }
 
 // PredictEncoded runs encoded pairs through the model, BatchSize at a time. Pairs of similar length are
 // batched together and each batch is padded to its own longest pair, so that little time goes into
