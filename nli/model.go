@@ -11,6 +11,8 @@ import (
 	"os"
 	"slices"
 	"strings"
+	"sync/atomic"
+	"time"
 
 	ort "github.com/yalue/onnxruntime_go"
 )
@@ -52,6 +54,7 @@ type Model struct {
 	maxLen    int
 	batchSize int
 	sha256    string
+	runNanos  atomic.Int64 // time spent inside ONNX Runtime's Run, for benchmarks
 }
 
 // Files a model folder must hold.
@@ -238,11 +241,31 @@ func (m *Model) Close() error {
 	return err
 }
 
+// Inputs are the names of the inputs the model takes.
+func (m *Model) Inputs() []string { return slices.Clone(m.inputs) }
+
+// LabelIndex returns the logit index of "contradiction", "entailment" or "neutral" (-1 otherwise).
+func (m *Model) LabelIndex(label string) int {
+	switch label {
+	case "contradiction":
+		return m.labels[0]
+	case "entailment":
+		return m.labels[1]
+	case "neutral":
+		return m.labels[2]
+	}
+	return -1
+}
+
 // Tokenizer is the model's tokenizer.
 func (m *Model) Tokenizer() *Tokenizer { return m.tok }
 
 // MaxLength is the most tokens a pair may have.
 func (m *Model) MaxLength() int { return m.maxLen }
+
+// RunTime is the total time spent inside ONNX Runtime's Run so far; the rest of a run's wall time is
+// tokenising, padding, attribution bookkeeping and output.
+func (m *Model) RunTime() time.Duration { return time.Duration(m.runNanos.Load()) }
 
 // SHA256 is the hex SHA-256 of model.onnx.
 func (m *Model) SHA256() string { return m.sha256 }
@@ -335,7 +358,10 @@ func (m *Model) run(batch []*Encoding) ([]Probs, error) {
 		values = append(values, t)
 	}
 	outputs := []ort.Value{nil}
-	if err := m.session.Run(values, outputs); err != nil {
+	start := time.Now()
+	err := m.session.Run(values, outputs)
+	m.runNanos.Add(int64(time.Since(start)))
+	if err != nil {
 		return nil, fmt.Errorf("onnxruntime: %w", err)
 	}
 	defer outputs[0].Destroy()

@@ -120,16 +120,29 @@ func (rw *RecordWriter) Write(r *Record) error {
 // Flush writes buffered records out.
 func (rw *RecordWriter) Flush() error { return rw.w.Flush() }
 
-// MarshalRecord encodes a record without HTML escaping, findings as [] rather than null.
-func MarshalRecord(r *Record) ([]byte, error) {
-	if r.Findings == nil {
-		r.Findings = []Finding{}
-	}
-	for i := range r.Findings {
-		if r.Findings[i].Spans == nil {
-			r.Findings[i].Spans = []PenaltySpan{}
+// MarshalJSON writes empty findings and spans as [] rather than null, so that consumers can iterate
+// without checks.
+func (r Record) MarshalJSON() ([]byte, error) {
+	type plain Record // without this method
+	p := plain(r)
+	p.Findings = make([]Finding, len(r.Findings))
+	for i, f := range r.Findings {
+		if f.Spans == nil {
+			f.Spans = []PenaltySpan{}
 		}
+		p.Findings[i] = f
 	}
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(p); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(buf.Bytes(), "\n"), nil
+}
+
+// MarshalRecord encodes a record as one line without HTML escaping.
+func MarshalRecord(r *Record) ([]byte, error) {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetEscapeHTML(false)

@@ -84,21 +84,45 @@ func (rr *ReplyReader) Next() (Reply, error) {
 	}
 }
 
-func (rr *ReplyReader) fail(rep Reply, field, format string, args ...any) Reply {
+func (rr *ReplyReader) parse(raw []byte) Reply {
+	if rr.format == FormatText {
+		rep := Reply{Line: rr.line}
+		if !utf8.Valid(raw) {
+			rep.Err = inputErr(rr.name, rr.line, "", "invalid UTF-8 at byte %d of the line", firstInvalidUTF8(raw)+1)
+			return rep
+		}
+		rep.ID = fmt.Sprintf("line-%d", rr.line)
+		rep.Text = string(raw)
+		return replyParser{rr.name, rr.line, rr.maxChars}.checkLength(rep)
+	}
+	return ParseReply(raw, rr.name, rr.line, rr.maxChars)
+}
+
+// ParseReply reads one reply object ({"id", "text", "context"?, ...}); where and line name it in
+// errors (line 0: where alone, e.g. "replies[3]"). A bad reply comes back with Err set.
+func ParseReply(raw []byte, where string, line, maxChars int) Reply {
+	if maxChars <= 0 {
+		maxChars = DefaultMaxReplyChars
+	}
+	return replyParser{where, line, maxChars}.parse(raw)
+}
+
+type replyParser struct {
+	name     string
+	line     int
+	maxChars int
+}
+
+func (rr replyParser) fail(rep Reply, field, format string, args ...any) Reply {
 	rep.Err = inputErr(rr.name, rr.line, field, format, args...)
 	return rep
 }
 
-func (rr *ReplyReader) parse(raw []byte) Reply {
+func (rr replyParser) parse(raw []byte) Reply {
 	rep := Reply{Line: rr.line}
 	if !utf8.Valid(raw) {
 		// encoding/json would quietly turn invalid bytes into U+FFFD; say so instead.
 		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", firstInvalidUTF8(raw)+1)
-	}
-	if rr.format == FormatText {
-		rep.ID = fmt.Sprintf("line-%d", rr.line)
-		rep.Text = string(raw)
-		return rr.checkLength(rep)
 	}
 	var fields map[string]json.RawMessage
 	if err := json.Unmarshal(raw, &fields); err != nil {
@@ -139,7 +163,7 @@ func (rr *ReplyReader) parse(raw []byte) Reply {
 	return rr.checkLength(rep)
 }
 
-func (rr *ReplyReader) checkLength(rep Reply) Reply {
+func (rr replyParser) checkLength(rep Reply) Reply {
 	if n := utf8.RuneCountInString(rep.Text); n > rr.maxChars {
 		return rr.fail(rep, "text", "%d characters, over the limit of %d", n, rr.maxChars)
 	}

@@ -41,52 +41,76 @@ type Summary struct {
 	Thresholds []float64         `json:"thresholds"`
 }
 
-// Summarize counts a set of records. A reply counts for a fact when at least one finding names it.
-// Facts that no finding names are added from known (e.g. a profile's fact ids), so that a fact never
-// broken still shows with rate 0.
-func Summarize(name string, recs []profile.Record, known []profile.Fact) Summary {
-	s := Summary{Name: name, Records: len(recs), PerFact: map[string]Rate{}, FactText: map[string]string{}}
-	k, n := 0, 0
-	perFact := map[string]int{}
+// Counter accumulates a Summary one record at a time, so that large files need not be held in memory.
+type Counter struct {
+	s       Summary
+	k, n    int
+	perFact map[string]int
+}
+
+// NewCounter starts a summary. Facts in known (e.g. a profile's) are listed even when no finding names
+// them, so that a fact never broken still shows with rate 0.
+func NewCounter(name string, known []profile.Fact) *Counter {
+	c := &Counter{s: Summary{Name: name, PerFact: map[string]Rate{}, FactText: map[string]string{}}, perFact: map[string]int{}}
 	for _, f := range known {
-		s.Facts = append(s.Facts, f.ID)
-		s.FactText[f.ID] = f.Text
+		c.s.Facts = append(c.s.Facts, f.ID)
+		c.s.FactText[f.ID] = f.Text
 	}
-	for _, r := range recs {
-		if r.Model != "" && !slices.Contains(s.Models, r.Model) {
-			s.Models = append(s.Models, r.Model)
-		}
-		if t := float64(r.Threshold); !slices.Contains(s.Thresholds, t) {
-			s.Thresholds = append(s.Thresholds, t)
-		}
-		if r.Verdict == profile.Failed {
-			s.Errors++
+	return c
+}
+
+// Add counts one record. A reply counts for a fact when at least one of its findings names the fact.
+func (c *Counter) Add(r *profile.Record) {
+	s := &c.s
+	s.Records++
+	if r.Model != "" && !slices.Contains(s.Models, r.Model) {
+		s.Models = append(s.Models, r.Model)
+	}
+	if t := float64(r.Threshold); !slices.Contains(s.Thresholds, t) {
+		s.Thresholds = append(s.Thresholds, t)
+	}
+	if r.Verdict == profile.Failed {
+		s.Errors++
+		return
+	}
+	c.n++
+	if r.Verdict == profile.Contradiction {
+		c.k++
+	}
+	seen := map[string]bool{}
+	for _, f := range r.Findings {
+		if seen[f.FactID] {
 			continue
 		}
-		n++
-		if r.Verdict == profile.Contradiction {
-			k++
+		seen[f.FactID] = true
+		c.perFact[f.FactID]++
+		if !slices.Contains(s.Facts, f.FactID) {
+			s.Facts = append(s.Facts, f.FactID)
 		}
-		seen := map[string]bool{}
-		for _, f := range r.Findings {
-			if seen[f.FactID] {
-				continue
-			}
-			seen[f.FactID] = true
-			perFact[f.FactID]++
-			if !slices.Contains(s.Facts, f.FactID) {
-				s.Facts = append(s.Facts, f.FactID)
-			}
-			if s.FactText[f.FactID] == "" {
-				s.FactText[f.FactID] = f.Fact
-			}
+		if s.FactText[f.FactID] == "" {
+			s.FactText[f.FactID] = f.Fact
 		}
 	}
-	s.Overall = NewRate(k, n)
+}
+
+// Summary returns the counts so far.
+func (c *Counter) Summary() Summary {
+	s := c.s
+	s.Overall = NewRate(c.k, c.n)
+	s.PerFact = make(map[string]Rate, len(s.Facts))
 	for _, id := range s.Facts {
-		s.PerFact[id] = NewRate(perFact[id], n)
+		s.PerFact[id] = NewRate(c.perFact[id], c.n)
 	}
 	return s
+}
+
+// Summarize counts a set of records held in memory.
+func Summarize(name string, recs []profile.Record, known []profile.Fact) Summary {
+	c := NewCounter(name, known)
+	for i := range recs {
+		c.Add(&recs[i])
+	}
+	return c.Summary()
 }
 
 // Change is the difference of two rates, later minus earlier, with Newcombe's 95% interval.

@@ -106,12 +106,27 @@ def training_pairs() -> list[Pair]:
     return snli("dev", dev_lines) + mnli(held_out=False) + breaking(held_out=False)
 
 
+def unrelated(pairs: list[Pair]) -> list[Pair]:
+    """Premise of row i with the hypothesis of row i + n/2 (mod n), kept when the two premises differ:
+    pairs about different things, labelled neutral. gainsay compares every fact with every sentence, so
+    most pairs it sees are like this; a model that calls them contradictions flags everything."""
+    n = len(pairs)
+    out = []
+    for i, p in enumerate(pairs):
+        q = pairs[(i + n // 2) % n]
+        if q.premise != p.premise:
+            out.append(Pair(p.premise, q.hypothesis, "neutral", f"unrelated:{p.source}+{q.source}"))
+    return out
+
+
 def held_out_sets() -> dict[str, list[Pair]]:
+    test = snli("test")
     return {
-        "snli-test": snli("test"),
+        "snli-test": test,
         "snli-dev-esnli": snli("dev", range(1, ESNLI_ROWS + 1)),
         "mnli-held-out": mnli(held_out=True),
         "breaking-held-out": breaking(held_out=True),
+        "unrelated-snli-test": unrelated(test),
     }
 
 

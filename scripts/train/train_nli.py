@@ -72,7 +72,7 @@ def batches(pairs, tok, max_len, batch_size, shuffle, rng):
         enc = tok(
             [pairs[i].premise for i in b],
             [pairs[i].hypothesis for i in b],
-            truncation="only_first",
+            truncation="longest_first",
             max_length=max_len,
             padding=True,
             return_tensors="pt",
@@ -106,6 +106,10 @@ def main():
     ap.add_argument("--limit", type=int, default=0, help="train on the first N pairs only (smoke runs)")
     ap.add_argument("--reverse-contradictions", action="store_true",
                     help="also train on (hypothesis, premise) for SNLI/MultiNLI contradictions")
+    ap.add_argument("--reverse-entailments", action="store_true",
+                    help="also train on (hypothesis, premise) of SNLI/MultiNLI entailments, labelled neutral")
+    ap.add_argument("--random-neutral", type=int, default=0,
+                    help="add this many pairs of a premise and an unrelated hypothesis, labelled neutral")
     ap.add_argument("--class-weights", action="store_true", help="weight the loss by inverse class frequency")
     args = ap.parse_args()
 
@@ -125,6 +129,27 @@ def main():
             for p in train
             if p.label == "contradiction" and not p.source.startswith("breaking")
         ]
+    if args.reverse_entailments:
+        # The reverse of an entailment is usually neutral: "A man plays a guitar" entails "A person
+        # plays music", but "A person plays music" says nothing about a man or a guitar. A heuristic
+        # that holds for most SNLI/MultiNLI pairs; it also adds the class the data has least of.
+        train += [
+            nli_data.Pair(p.hypothesis, p.premise, "neutral", p.source + ":rev")
+            for p in train
+            if p.label == "entailment" and not p.source.startswith("breaking") and not p.source.endswith(":rev")
+        ]
+    if args.random_neutral:
+        # gainsay pairs every profile fact with every reply sentence, so most pairs it sees are about
+        # different things. SNLI's annotators, told that both sentences describe one photo, labelled
+        # such pairs contradiction; for a character profile they are neutral. Teach that with
+        # premises and hypotheses drawn from different rows.
+        pool = [p for p in train if not p.source.startswith("breaking") and not p.source.endswith(":rev")]
+        extra = []
+        while len(extra) < args.random_neutral:
+            a, b = rng.choice(pool), rng.choice(pool)
+            if a.premise != b.premise and a.source != b.source:
+                extra.append(nli_data.Pair(a.premise, b.hypothesis, "neutral", f"random:{a.source}+{b.source}"))
+        train += extra
     if args.limit:
         rng.shuffle(train)
         train = train[: args.limit]
