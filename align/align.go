@@ -1,0 +1,83 @@
+// Package align turns gainsay's penalty spans into per-token weights in a generator's own
+// tokenisation: what a token-level unlikelihood loss needs.
+//
+// Rule: a token's weight is the largest weight of the spans it overlaps, times the share of the
+// token's characters (code points, leading white space not counted; white space is the Unicode
+// White_Space property) that the span covers. So " never"
+// as one byte-level token under the span "never" gets the full weight, and "nevermore" half covered
+// gets about half. Tokens of white space only get 0. scripts/python/gainsay_train applies the same rule
+// to Hugging Face offset mappings; the tests check both agree.
+package align
+
+import (
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/gainsay/gainsay/internal/textpos"
+	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/profile"
+)
+
+// Tokens is one record aligned to a generator's tokens.
+type Tokens struct {
+	ID      string          `json:"id"`
+	Verdict profile.Verdict `json:"verdict"`
+	// SequenceFlag marks a reply judged contradicting as a whole, for sequence-level unlikelihood.
+	SequenceFlag bool           `json:"sequence_flag"`
+	Score        profile.Prob   `json:"score"`
+	TokenIDs     []int          `json:"token_ids"`
+	Weights      []profile.Prob `json:"weights"`
+	// Offsets are code-point ranges of the reply text, one per token (Python str indexes).
+	Offsets [][2]int `json:"offsets"`
+	Error   string   `json:"error,omitempty"`
+}
+
+// Record aligns one record: the reply text is tokenised on its own, without special tokens.
+func Record(rec *profile.Record, tok *nli.Tokenizer) (Tokens, error) {
+	out := Tokens{ID: rec.ID, Verdict: rec.Verdict, SequenceFlag: rec.Verdict == profile.Contradiction,
+		Score: rec.Score, Error: rec.Error, TokenIDs: []int{}, Weights: []profile.Prob{}, Offsets: [][2]int{}}
+	pieces, err := tok.Tokenize(rec.Text)
+	if err != nil {
+		return out, err
+	}
+	var spans []profile.PenaltySpan
+	for _, f := range rec.Findings {
+		spans = append(spans, f.Spans...)
+	}
+	weights := Weights(rec.Text, pieces, spans)
+	idx := textpos.New(rec.Text)
+	for i, p := range pieces {
+		out.TokenIDs = append(out.TokenIDs, p.ID)
+		out.Weights = append(out.Weights, profile.Prob(weights[i]))
+		out.Offsets = append(out.Offsets, [2]int{idx.Runes(p.Start), idx.Runes(p.End)})
+	}
+	return out, nil
+}
+
+// Weights applies the package's rule to tokens with byte offsets into text and spans over text.
+func Weights(text string, pieces []nli.Piece, spans []profile.PenaltySpan) []float64 {
+	out := make([]float64, len(pieces))
+	for i, p := range pieces {
+		start := p.Start
+		for start < p.End {
+			r, n := utf8.DecodeRuneInString(text[start:])
+			if !unicode.Is(unicode.White_Space, r) {
+				break
+			}
+			start += n
+		}
+		if start >= p.End {
+			continue
+		}
+		chars := utf8.RuneCountInString(text[start:p.End])
+		for _, sp := range spans {
+			a, b := max(start, sp.ByteStart), min(p.End, sp.ByteEnd)
+			if a >= b {
+				continue
+			}
+			share := float64(utf8.RuneCountInString(text[a:b])) / float64(chars)
+			out[i] = max(out[i], float64(sp.Weight)*share)
+		}
+	}
+	return out
+}

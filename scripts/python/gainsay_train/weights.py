@@ -1,0 +1,53 @@
+"""Per-token penalty weights, the rule of `gainsay align`.
+
+A token's weight is the largest weight of the penalty spans it overlaps, times the share of the token's
+characters that the span covers; the token's leading white space (Unicode White_Space) is not counted,
+and a token of white space only gets 0. Offsets are code points, as Python str indexing and Hugging Face
+offset mappings count them.
+"""
+from __future__ import annotations
+
+from typing import Sequence
+
+# The Unicode White_Space property (PropList.txt); str.isspace() differs on a few control characters.
+WHITE_SPACE = frozenset(
+    "\t\n\x0b\x0c\r \x85\xa0\u1680\u2000\u2001\u2002\u2003\u2004\u2005\u2006\u2007\u2008\u2009\u200a"
+    "\u2028\u2029\u202f\u205f\u3000"
+)
+
+
+def spans_of(record: dict) -> list[dict]:
+    """All penalty spans of a record, over all its findings."""
+    return [s for f in record.get("findings", []) for s in f.get("spans", [])]
+
+
+def weights_from_offsets(text: str, offsets: Sequence[tuple[int, int]], spans: Sequence[dict]) -> list[float]:
+    out = []
+    for start, end in offsets:
+        while start < end and text[start] in WHITE_SPACE:
+            start += 1
+        w = 0.0
+        if start < end:
+            for s in spans:
+                a, b = max(start, s["start"]), min(end, s["end"])
+                if a < b:
+                    w = max(w, s["weight"] * (b - a) / (end - start))
+        out.append(w)
+    return out
+
+
+def _encode(tokenizer, text: str):
+    """ids and code-point offsets of text without special tokens, for a tokenizers.Tokenizer or a
+    transformers fast tokenizer."""
+    if hasattr(tokenizer, "encode") and hasattr(tokenizer, "no_padding"):  # tokenizers.Tokenizer
+        enc = tokenizer.encode(text, add_special_tokens=False)
+        return list(enc.ids), [tuple(o) for o in enc.offsets]
+    enc = tokenizer(text, add_special_tokens=False, return_offsets_mapping=True)
+    return list(enc["input_ids"]), [tuple(o) for o in enc["offset_mapping"]]
+
+
+def token_weights(record: dict, tokenizer) -> tuple[list[int], list[float], list[tuple[int, int]]]:
+    """Token ids of the record's reply text, the penalty weight of each, and their offsets."""
+    text = record.get("text", "")
+    ids, offsets = _encode(tokenizer, text)
+    return ids, weights_from_offsets(text, offsets, spans_of(record)), offsets
