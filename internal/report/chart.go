@@ -1,0 +1,142 @@
+package report
+
+import (
+	"fmt"
+	"math"
+)
+
+// palette: the Okabe-Ito colours (Okabe and Ito 2008), chosen because they stay distinct for the
+// common forms of colour blindness; one per input file.
+var palette = []string{"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#56B4E9", "#E69F00", "#000000"}
+
+// Chart is the per-fact bar chart, laid out in SVG user units.
+type Chart struct {
+	Width, Height int
+	AxisX0        float64 // where bars start
+	AxisW         float64 // bar area width
+	Max           float64 // rate at the right edge
+	Ticks         []Tick
+	Rows          []ChartRow
+}
+
+// Tick is an axis mark.
+type Tick struct {
+	X     float64
+	Label string
+}
+
+// ChartRow is one fact.
+type ChartRow struct {
+	Label string
+	Title string
+	Y     float64 // top of the row
+	Bars  []Bar
+}
+
+// Bar is one file's rate for a fact, with its 95% interval as a whisker.
+type Bar struct {
+	X, Y, W, H   float64
+	Color        string
+	Label        string
+	LowX, HighX  float64
+	MidY         float64
+	Title        string
+	TextX, TextY float64
+}
+
+const (
+	labelWidth = 190.0
+	barArea    = 430.0
+	barHeight  = 16.0
+	rowGap     = 12.0
+)
+
+// axisMax rounds the largest interval end up to the next 10%, at least 10%.
+func axisMax(v float64) float64 {
+	m := math.Ceil(v*10-1e-9) / 10
+	return math.Min(1, math.Max(0.1, m))
+}
+
+func factChart(p *Page) Chart {
+	top := 0.0
+	for _, f := range p.Facts {
+		for _, r := range f.Rates {
+			top = math.Max(top, r.CI.High)
+		}
+	}
+	c := Chart{AxisX0: labelWidth, AxisW: barArea, Max: axisMax(top), Width: int(labelWidth + barArea + 150)}
+	scale := func(r float64) float64 { return labelWidth + barArea*r/c.Max }
+	for k := 0; k <= 5; k++ {
+		v := c.Max * float64(k) / 5
+		c.Ticks = append(c.Ticks, Tick{X: scale(v), Label: fmt.Sprintf("%.0f%%", 100*v)})
+	}
+	y := 8.0
+	for _, f := range p.Facts {
+		row := ChartRow{Label: shorten(f.ID, 28), Title: f.ID + ": " + f.Text, Y: y}
+		for i, r := range f.Rates {
+			by := y + float64(i)*(barHeight+2)
+			b := Bar{X: labelWidth, Y: by, W: barArea * r.Rate / c.Max, H: barHeight, Color: p.Files[i].Color,
+				LowX: scale(r.CI.Low), HighX: scale(r.CI.High), MidY: by + barHeight/2,
+				Label: fmt.Sprintf("%.1f%% (%d/%d)", 100*r.Rate, r.K, r.N),
+				Title: fmt.Sprintf("%s, %s: %.1f%%, 95%% interval %.1f%% to %.1f%%", f.ID, p.Files[i].Name, 100*r.Rate, 100*r.CI.Low, 100*r.CI.High)}
+			b.TextX, b.TextY = scale(r.CI.High)+6, by+barHeight-4
+			row.Bars = append(row.Bars, b)
+		}
+		c.Rows = append(c.Rows, row)
+		y += float64(len(f.Rates))*(barHeight+2) + rowGap
+	}
+	c.Height = int(y + 24)
+	return c
+}
+
+// Trend is the overall rate per file (per checkpoint), as vertical bars with interval whiskers.
+type Trend struct {
+	Width, Height int
+	Base          float64
+	Bars          []TrendBar
+	Ticks         []Tick // here X holds the y coordinate
+}
+
+// TrendBar is one file.
+type TrendBar struct {
+	X, Y, W, H  float64
+	Color       string
+	Name, Label string
+	LowY, HighY float64
+	MidX        float64
+	Title       string
+}
+
+func trendChart(p *Page) *Trend {
+	top := 0.0
+	for _, f := range p.Files {
+		top = math.Max(top, f.Summary.Overall.CI.High)
+	}
+	maxV := axisMax(top)
+	const plotH, barW, gap, left = 180.0, 56.0, 36.0, 48.0
+	base := plotH + 20
+	t := &Trend{Base: base, Width: int(left + float64(len(p.Files))*(barW+gap) + gap), Height: int(base + 48)}
+	yOf := func(v float64) float64 { return base - plotH*v/maxV }
+	for k := 0; k <= 4; k++ {
+		v := maxV * float64(k) / 4
+		t.Ticks = append(t.Ticks, Tick{X: yOf(v), Label: fmt.Sprintf("%.0f%%", 100*v)})
+	}
+	for i, f := range p.Files {
+		r := f.Summary.Overall
+		x := left + gap + float64(i)*(barW+gap)
+		t.Bars = append(t.Bars, TrendBar{
+			X: x, Y: yOf(r.Rate), W: barW, H: base - yOf(r.Rate), Color: f.Color, Name: shorten(f.Name, 14),
+			Label: fmt.Sprintf("%.1f%%", 100*r.Rate), LowY: yOf(r.CI.Low), HighY: yOf(r.CI.High), MidX: x + barW/2,
+			Title: fmt.Sprintf("%s: %d of %d replies, %.1f%% (95%% interval %.1f%% to %.1f%%)", f.Name, r.K, r.N, 100*r.Rate, 100*r.CI.Low, 100*r.CI.High),
+		})
+	}
+	return t
+}
+
+func shorten(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
+}
