@@ -1,0 +1,234 @@
+package serve
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"net"
+	"net/http"
+	"net/http/httptest"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/profile"
+)
+
+// The tiny test model of nli (scripts/reference/make_tiny_models.py): exact and fast.
+func tinyModel(t testing.TB) *nli.Model {
+	m, err := nli.OpenDir("../../nli/testdata/tiny-wordpiece", nli.Options{BatchSize: 16})
+	require.NoError(t, err, "the ONNX Runtime library is needed: run scripts/install-onnxruntime")
+	t.Cleanup(func() { m.Close() })
+	return m
+}
+
+const profileJSON = `{"character": "maren", "facts": [{"id": "home", "text": "I live in the lighthouse on Gull Point."}, {"id": "swim", "text": "I swim every morning."}]}`
+
+var sentences = []string{
+	"I have never seen the sea.", "The lamp is lit.", "I do not swim. Never!", "Gulls again.", "I also fish at dawn.",
+}
+
+// request builds a request of n replies whose ids carry the client and request numbers.
+func request(client, req, n int) CheckRequest {
+	r := CheckRequest{Profile: json.RawMessage(profileJSON)}
+	for i := 0; i < n; i++ {
+		text := sentences[(client+req+i)%len(sentences)]
+		b, _ := json.Marshal(map[string]string{"id": fmt.Sprintf("c%d-r%d-%d", client, req, i), "text": text})
+		r.Replies = append(r.Replies, b)
+	}
+	return r
+}
+
+func post(t testing.TB, url string, body any) (*http.Response, []byte) {
+	b, err := json.Marshal(body)
+	require.NoError(t, err)
+	resp, err := http.Post(url+"/v1/check", "application/json", bytes.NewReader(b))
+	require.NoError(t, err)
+	defer resp.Body.Close()
+	out, err := io.ReadAll(resp.Body)
+	require.NoError(t, err)
+	return resp, out
+}
+
+// direct is what gainsay check writes for the same request, one marshalled record per reply.
+func direct(t testing.TB, m *nli.Model, name string, req CheckRequest) []string {
+	prof, err := profile.ParseProfile("request profile", req.Profile, profile.FormatJSON)
+	require.NoError(t, err)
+	replies := make([]profile.Reply, len(req.Replies))
+	for i, raw := range req.Replies {
+		replies[i] = profile.ParseReply(raw, fmt.Sprintf("request replies[%d]", i), 0, 0)
+		replies[i].Line = i + 1
+	}
+	recs, _, err := (&profile.Checker{Scorer: m, Model: name}).Check(prof, replies)
+	require.NoError(t, err)
+	out := make([]string, len(recs))
+	for i := range recs {
+		b, err := profile.MarshalRecord(&recs[i])
+		require.NoError(t, err)
+		out[i] = string(b)
+	}
+	return out
+}
+
+func TestLoadAnswersEveryRequestOnceAndLikeCheck(t *testing.T) {
+	m := tinyModel(t)
+	svc := New(m, "tiny", Config{MaxInflight: 64, MaxWait: 2 * time.Millisecond})
+	ts := httptest.NewServer(svc.Handler())
+	defer ts.Close()
+	defer svc.Close()
+
+	const clients, perClient = 16, 8
+	var mu sync.Mutex
+	seen := map[string]int{}
+	var wg sync.WaitGroup
+	for c := 0; c < clients; c++ {
+		wg.Add(1)
+		go func(c int) {
+			defer wg.Done()
+			for r := 0; r < perClient; r++ {
+				req := request(c, r, 1+(c+r)%5)
+				resp, body := post(t, ts.URL, req)
+				if !assert.Equal(t, http.StatusOK, resp.StatusCode, string(body)) {
+					return
+				}
+				var got struct {
+					Records []json.RawMessage `json:"records"`
+				}
+				require.NoError(t, json.Unmarshal(body, &got))
+				want := direct(t, m, "tiny", req)
+				require.Len(t, got.Records, len(want))
+				for i := range want {
+					var compact bytes.Buffer
+					json.Compact(&compact, got.Records[i])
+					assert.Equal(t, want[i], compact.String(), "client %d request %d reply %d", c, r, i)
+					var id struct{ ID string }
+					json.Unmarshal(got.Records[i], &id)
+					mu.Lock()
+					seen[id.ID]++
+					mu.Unlock()
+				}
+			}
+		}(c)
+	}
+	wg.Wait()
+	total := 0
+	for c := 0; c < clients; c++ {
+		for r := 0; r < perClient; r++ {
+			total += 1 + (c+r)%5
+		}
+	}
+	assert.Len(t, seen, total, "every reply answered")
+	for id, n := range seen {
+		assert.Equal(t, 1, n, "reply %s answered once", id)
+	}
+}
+
+func TestBatcherMergesConcurrentCallers(t *testing.T) {
+	m := tinyModel(t)
+	b := NewBatcher(m, 1000, 200*time.Millisecond, 16)
+	runs := make(chan int, 16)
+	b.runs = runs
+	defer b.Close()
+	enc, err := m.Encode([]nli.Pair{{Premise: "a", Hypothesis: "I have never seen it."}})
+	require.NoError(t, err)
+	var wg sync.WaitGroup
+	for i := 0; i < 4; i++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			got, err := b.PredictEncoded(enc)
+			assert.NoError(t, err)
+			assert.Len(t, got, 1)
+		}()
+	}
+	wg.Wait()
+	first := <-runs
+	assert.Greater(t, first, 1, "the four callers' pairs shared a run")
+}
+
+func TestBusyWhenFull(t *testing.T) {
+	svc := New(tinyModel(t), "tiny", Config{MaxInflight: 2})
+	defer svc.Close()
+	ts := httptest.NewServer(svc.Handler())
+	defer ts.Close()
+	svc.slots <- struct{}{}
+	svc.slots <- struct{}{}
+	resp, body := post(t, ts.URL, request(0, 0, 1))
+	assert.Equal(t, http.StatusServiceUnavailable, resp.StatusCode)
+	assert.Equal(t, "1", resp.Header.Get("Retry-After"))
+	assert.Contains(t, string(body), "busy")
+	<-svc.slots
+	resp, _ = post(t, ts.URL, request(0, 0, 1))
+	assert.Equal(t, http.StatusOK, resp.StatusCode, "a freed slot admits the next request")
+}
+
+func TestRequestErrors(t *testing.T) {
+	svc := New(tinyModel(t), "tiny", Config{MaxBodyBytes: 2000, MaxReplies: 3, MaxFacts: 1})
+	defer svc.Close()
+	ts := httptest.NewServer(svc.Handler())
+	defer ts.Close()
+	cases := []struct {
+		body   string
+		status int
+		want   string
+	}{
+		{`{`, 400, "request: not JSON"},
+		{`{"replies": []}`, 400, "request: profile: missing"},
+		{`{"profile": {"facts": []}, "replies": []}`, 400, "request profile:1: character: missing or empty"},
+		{`{"profile": {"character": "m", "facts": [{"id": "a", "text": "x"}, {"id": "b", "text": "y"}]}, "replies": []}`, 413, "2 facts, over the limit of 1"},
+		{`{"profile": {"character": "m", "facts": [{"id": "a", "text": "x"}]}, "replies": [{}, {}, {}, {}]}`, 413, "4 replies, over the limit of 3"},
+		{`{"profile": {"character": "m", "facts": [{"id": "a", "text": "x"}]}, "replies": [], "threshold": 2}`, 400, "threshold must be in (0, 1]"},
+		{`{"profile": {"character": "m", "facts": [{"id": "a", "text": "` + strings.Repeat("x", 3000) + `"}]}, "replies": []}`, 413, "over 2000 bytes"},
+	}
+	for _, c := range cases {
+		resp, err := http.Post(ts.URL+"/v1/check", "application/json", strings.NewReader(c.body))
+		require.NoError(t, err)
+		b, _ := io.ReadAll(resp.Body)
+		resp.Body.Close()
+		assert.Equal(t, c.status, resp.StatusCode, c.body)
+		assert.Contains(t, string(b), c.want, c.body)
+	}
+	// A bad reply is an error record, not a failed request.
+	r, b := post(t, ts.URL, CheckRequest{Profile: json.RawMessage(`{"character": "m", "facts": [{"id": "a", "text": "x"}]}`),
+		Replies: []json.RawMessage{json.RawMessage(`{"id": "bad"}`), json.RawMessage(`{"id": "ok", "text": "Fine."}`)}})
+	assert.Equal(t, http.StatusOK, r.StatusCode)
+	assert.Contains(t, string(b), `"error":"request replies[0]: text: missing"`)
+	assert.Contains(t, string(b), `"id":"ok","verdict":"consistent"`)
+
+	hr, err := http.Get(ts.URL + "/healthz")
+	require.NoError(t, err)
+	hb, _ := io.ReadAll(hr.Body)
+	hr.Body.Close()
+	assert.Contains(t, string(hb), `"status":"ok"`)
+}
+
+func TestGracefulShutdownFinishesInFlight(t *testing.T) {
+	// A long gather window keeps the request in flight while the server shuts down.
+	svc := New(tinyModel(t), "tiny", Config{MaxWait: 400 * time.Millisecond, MaxBatch: 1 << 20})
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	require.NoError(t, err)
+	srv := &http.Server{Handler: svc.Handler()}
+	go srv.Serve(ln)
+	url := "http://" + ln.Addr().String()
+
+	done := make(chan int, 1)
+	go func() {
+		resp, _ := post(t, url, request(0, 0, 2))
+		done <- resp.StatusCode
+	}()
+	time.Sleep(100 * time.Millisecond)
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	require.NoError(t, srv.Shutdown(ctx))
+	svc.Close()
+	assert.Equal(t, http.StatusOK, <-done, "the request in flight was answered")
+	_, err = http.Post(url+"/v1/check", "application/json", strings.NewReader("{}"))
+	assert.Error(t, err, "no new connections after shutdown")
+}
