@@ -58,14 +58,7 @@ func Record(rec *profile.Record, tok *nli.Tokenizer) (Tokens, error) {
 func Weights(text string, pieces []nli.Piece, spans []profile.PenaltySpan) []float64 {
 	out := make([]float64, len(pieces))
 	for i, p := range pieces {
-		start := p.Start
-		for start < p.End {
-			r, n := utf8.DecodeRuneInString(text[start:])
-			if !unicode.Is(unicode.White_Space, r) {
-				break
-			}
-			start += n
-		}
+		start := textpos.TrimLeft(text, p.Start, p.End, isWhiteSpace)
 		if start >= p.End {
 			continue
 		}
@@ -81,3 +74,5 @@ func Weights(text string, pieces []nli.Piece, spans []profile.PenaltySpan) []flo
 	}
 	return out
 }
+
+func isWhiteSpace(r rune) bool { return unicode.Is(unicode.White_Space, r) }

@@ -1,14 +1,13 @@
 package align
 
 import (
-	"bufio"
-	"encoding/json"
 	"os"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -26,21 +25,6 @@ type expected struct {
 	Weights  []float64 `json:"weights"`
 }
 
-func lines[T any](t *testing.T, path string) []T {
-	f, err := os.Open(path)
-	require.NoError(t, err)
-	defer f.Close()
-	var out []T
-	sc := bufio.NewScanner(f)
-	sc.Buffer(nil, 1<<22)
-	for sc.Scan() {
-		var v T
-		require.NoError(t, json.Unmarshal(sc.Bytes(), &v))
-		out = append(out, v)
-	}
-	return out
-}
-
 func TestAlignParity(t *testing.T) {
 	f, err := os.Open("testdata/records.jsonl")
 	require.NoError(t, err)
@@ -53,7 +37,8 @@ func TestAlignParity(t *testing.T) {
 			require.NoError(t, err)
 			tok, err := nli.LoadTokenizer(data)
 			require.NoError(t, err)
-			want := lines[expected](t, "testdata/"+fam+".expected.jsonl")
+			want, err := jsonl.ReadFile[expected]("testdata/" + fam + ".expected.jsonl")
+			require.NoError(t, err)
 			require.Len(t, want, len(recs))
 			for i := range recs {
 				got, err := Record(&recs[i], tok)

@@ -3,7 +3,8 @@ package nli
 import (
 	"fmt"
 	"unicode"
-	"unicode/utf8"
+
+	"github.com/gainsay/gainsay/internal/textpos"
 )
 
 // Occlusion is how leave-one-word-out attribution takes a word away.
@@ -44,15 +45,7 @@ func Words(text string, pieces []Piece) []Word {
 	type span struct{ start, end int }
 	spans := make([]span, len(pieces))
 	for i, p := range pieces {
-		s := p.Start
-		for s < p.End {
-			r, n := utf8.DecodeRuneInString(text[s:])
-			if !unicode.IsSpace(r) {
-				break
-			}
-			s += n
-		}
-		spans[i] = span{s, p.End}
+		spans[i] = span{textpos.TrimLeft(text, p.Start, p.End, unicode.IsSpace), p.End}
 	}
 	empty := func(i int) bool { return spans[i].start >= spans[i].end }
 	punct := func(i int) bool {

@@ -1,13 +1,12 @@
 package nli
 
 import (
-	"bufio"
-	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
 	"testing"
 
+	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/internal/textpos"
 )
 
@@ -32,22 +31,11 @@ type parityExpected struct {
 
 func readJSONLines[T any](t testing.TB, path string) []T {
 	t.Helper()
-	f, err := os.Open(path)
+	v, err := jsonl.ReadFile[T](path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer f.Close()
-	var out []T
-	sc := bufio.NewScanner(f)
-	sc.Buffer(nil, 1<<22)
-	for sc.Scan() {
-		var v T
-		if err := json.Unmarshal(sc.Bytes(), &v); err != nil {
-			t.Fatalf("%s: %v", path, err)
-		}
-		out = append(out, v)
-	}
-	return out
+	return v
 }
 
 func loadTokenizerFile(t testing.TB, path string) *Tokenizer {

@@ -9,6 +9,8 @@ import (
 	"io"
 	"math"
 	"strconv"
+
+	"github.com/gainsay/gainsay/internal/jsonl"
 )
 
 // Verdict is the judgement on a whole reply.
@@ -154,45 +156,36 @@ func MarshalRecord(r *Record) ([]byte, error) {
 
 // RecordReader reads records written by gainsay check.
 type RecordReader struct {
-	r    *bufio.Reader
+	s    *jsonl.Scanner
 	name string
-	line int
 }
 
 // NewRecordReader reads JSON Lines records from r; name is used in errors.
 func NewRecordReader(r io.Reader, name string) *RecordReader {
-	return &RecordReader{r: bufio.NewReaderSize(r, 1<<16), name: name}
+	return &RecordReader{s: jsonl.NewScanner(r), name: name}
 }
 
 // Next returns the next record or io.EOF. A line that is not a record is an *InputError.
 func (rr *RecordReader) Next() (Record, error) {
-	for {
-		raw, err := rr.r.ReadBytes('\n')
-		if len(raw) == 0 && err != nil {
-			if errors.Is(err, io.EOF) {
-				return Record{}, io.EOF
-			}
-			return Record{}, fmt.Errorf("%s: %w", rr.name, err)
-		}
-		rr.line++
-		raw = bytes.TrimSpace(raw)
-		if len(raw) == 0 {
-			continue
-		}
-		var rec Record
-		dec := json.NewDecoder(bytes.NewReader(raw))
-		if err := dec.Decode(&rec); err != nil {
-			return Record{}, inputErr(rr.name, rr.line, "", "not a gainsay record: %v", err)
-		}
-		switch rec.Verdict {
-		case Contradiction, Consistent, Failed:
-		case "":
-			return Record{}, inputErr(rr.name, rr.line, "verdict", "missing (is this the output of gainsay check?)")
-		default:
-			return Record{}, inputErr(rr.name, rr.line, "verdict", "%q is not contradiction, consistent or error", rec.Verdict)
-		}
-		return rec, nil
+	raw, line, err := rr.s.Next()
+	if errors.Is(err, io.EOF) {
+		return Record{}, io.EOF
 	}
+	if err != nil {
+		return Record{}, fmt.Errorf("%s: %w", rr.name, err)
+	}
+	var rec Record
+	if err := json.Unmarshal(raw, &rec); err != nil {
+		return Record{}, inputErr(rr.name, line, "", "not a gainsay record: %v", err)
+	}
+	switch rec.Verdict {
+	case Contradiction, Consistent, Failed:
+	case "":
+		return Record{}, inputErr(rr.name, line, "verdict", "missing (is this the output of gainsay check?)")
+	default:
+		return Record{}, inputErr(rr.name, line, "verdict", "%q is not contradiction, consistent or error", rec.Verdict)
+	}
+	return rec, nil
 }
 
 // ReadAllRecords reads every record of r.

@@ -1,7 +1,6 @@
 package profile
 
 import (
-	"bufio"
 	"bytes"
 	"encoding/json"
 	"errors"
@@ -10,6 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 	"unicode/utf8"
+
+	"github.com/gainsay/gainsay/internal/jsonl"
 )
 
 // Reply is one sampled reply to check. A reply that could not be read has Err set: it still gets its
@@ -45,7 +46,7 @@ func ReplyFormat(name string) (Format, error) {
 // ReplyReader reads replies one at a time: JSON Lines (one object a line with id and text, optional
 // context, other fields kept) or plain text (one reply a line, id "line-N"). Blank lines are skipped.
 type ReplyReader struct {
-	r        *bufio.Reader
+	s        *jsonl.Scanner
 	name     string
 	format   Format
 	maxChars int
@@ -58,30 +59,21 @@ func NewReplyReader(r io.Reader, name string, format Format, maxChars int) *Repl
 	if maxChars <= 0 {
 		maxChars = DefaultMaxReplyChars
 	}
-	return &ReplyReader{r: bufio.NewReaderSize(r, 1<<16), name: name, format: format, maxChars: maxChars}
+	return &ReplyReader{s: jsonl.NewScanner(r), name: name, format: format, maxChars: maxChars}
 }
 
 // Next returns the next reply, or io.EOF at the end. Other errors are read failures of the underlying
 // reader; bad lines come back as replies with Err set.
 func (rr *ReplyReader) Next() (Reply, error) {
-	for {
-		raw, err := rr.r.ReadBytes('\n')
-		if len(raw) == 0 && err != nil {
-			if errors.Is(err, io.EOF) {
-				return Reply{}, io.EOF
-			}
-			return Reply{}, fmt.Errorf("%s: %w", rr.name, err)
-		}
-		rr.line++
-		if rr.line == 1 {
-			raw = trimBOM(raw)
-		}
-		raw = bytes.TrimRight(raw, "\r\n")
-		if len(bytes.TrimSpace(raw)) == 0 {
-			continue
-		}
-		return rr.parse(raw), nil
+	raw, line, err := rr.s.Next()
+	if errors.Is(err, io.EOF) {
+		return Reply{}, io.EOF
 	}
+	if err != nil {
+		return Reply{}, fmt.Errorf("%s: %w", rr.name, err)
+	}
+	rr.line = line
+	return rr.parse(raw), nil
 }
 
 func (rr *ReplyReader) parse(raw []byte) Reply {

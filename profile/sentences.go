@@ -6,6 +6,8 @@ import (
 	"unicode/utf8"
 
 	"github.com/rivo/uniseg"
+
+	"github.com/gainsay/gainsay/internal/textpos"
 )
 
 // Span is a byte range of a text.
@@ -88,19 +90,6 @@ func Sentences(text string) []Span {
 }
 
 func trimSpan(text string, s Span) Span {
-	for s.Start < s.End {
-		r, n := utf8.DecodeRuneInString(text[s.Start:])
-		if !unicode.IsSpace(r) {
-			break
-		}
-		s.Start += n
-	}
-	for s.End > s.Start {
-		r, n := utf8.DecodeLastRuneInString(text[:s.End])
-		if !unicode.IsSpace(r) {
-			break
-		}
-		s.End -= n
-	}
+	s.Start, s.End = textpos.Trim(text, s.Start, s.End, unicode.IsSpace)
 	return s
 }

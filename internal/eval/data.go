@@ -20,6 +20,7 @@ import (
 	"unicode"
 	"unicode/utf8"
 
+	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -115,22 +116,20 @@ func ReadPairs(path string) ([]Item, error) {
 	}
 	defer f.Close()
 	var out []Item
-	r := bufio.NewReader(f)
-	for line := 1; ; line++ {
-		raw, err := r.ReadBytes('\n')
-		if len(bytes.TrimSpace(raw)) > 0 {
-			it, perr := parsePair(path, line, raw)
-			if perr != nil {
-				return nil, perr
-			}
-			out = append(out, it)
-		}
+	s := jsonl.NewScanner(f)
+	for {
+		raw, line, err := s.Next()
 		if errors.Is(err, io.EOF) {
 			return out, nil
 		}
 		if err != nil {
+			return nil, fmt.Errorf("%s: %w", path, err)
+		}
+		it, err := parsePair(path, line, raw)
+		if err != nil {
 			return nil, err
 		}
+		out = append(out, it)
 	}
 }
 
@@ -296,36 +295,34 @@ func ReadBreaking(path string, heldOut bool) ([]Item, error) {
 	}
 	defer f.Close()
 	var out []Item
-	r := bufio.NewReader(f)
-	for line := 1; ; line++ {
-		raw, err := r.ReadBytes('\n')
-		if len(bytes.TrimSpace(raw)) > 0 {
-			var v struct {
-				S1       string          `json:"sentence1"`
-				S2       string          `json:"sentence2"`
-				Label    string          `json:"gold_label"`
-				Category string          `json:"category"`
-				PairID   json.RawMessage `json:"pairID"`
-			}
-			if err := json.Unmarshal(raw, &v); err != nil {
-				return nil, inputErr(path, line, "", "not a Breaking NLI row: %v", err)
-			}
-			if v.S1 == "" || v.S2 == "" {
-				return nil, inputErr(path, line, "sentence1", "missing sentence1 or sentence2")
-			}
-			if LabelIndex(v.Label) < 0 {
-				return nil, inputErr(path, line, "gold_label", "%q is not contradiction, entailment or neutral", v.Label)
-			}
-			if !heldOut || BreakingHeldOut[v.Category] {
-				out = append(out, Item{Premise: v.S1, Hypothesis: v.S2, Label: v.Label,
-					Gold: substituted(v.S1, v.S2), Source: "breaking:" + string(v.PairID)})
-			}
-		}
+	s := jsonl.NewScanner(f)
+	for {
+		raw, line, err := s.Next()
 		if errors.Is(err, io.EOF) {
 			return out, nil
 		}
 		if err != nil {
-			return nil, err
+			return nil, fmt.Errorf("%s: %w", path, err)
+		}
+		var v struct {
+			S1       string          `json:"sentence1"`
+			S2       string          `json:"sentence2"`
+			Label    string          `json:"gold_label"`
+			Category string          `json:"category"`
+			PairID   json.RawMessage `json:"pairID"`
+		}
+		if err := json.Unmarshal(raw, &v); err != nil {
+			return nil, inputErr(path, line, "", "not a Breaking NLI row: %v", err)
+		}
+		if v.S1 == "" || v.S2 == "" {
+			return nil, inputErr(path, line, "sentence1", "missing sentence1 or sentence2")
+		}
+		if LabelIndex(v.Label) < 0 {
+			return nil, inputErr(path, line, "gold_label", "%q is not contradiction, entailment or neutral", v.Label)
+		}
+		if !heldOut || BreakingHeldOut[v.Category] {
+			out = append(out, Item{Premise: v.S1, Hypothesis: v.S2, Label: v.Label,
+				Gold: substituted(v.S1, v.S2), Source: "breaking:" + string(v.PairID)})
 		}
 	}
 }
@@ -377,31 +374,18 @@ func ReadTaxiNLI(path string, heldOut bool) ([]Item, error) {
 		return nil, err
 	}
 	defer f.Close()
-	r := csv.NewReader(f)
-	r.Comma = '\t'
-	r.LazyQuotes = true
-	header, err := r.Read()
+	r, col, err := readHeader(f, path, '\t', "prem", "hyp", "label", "pairID")
 	if err != nil {
-		return nil, inputErr(path, 1, "", "no header: %v", err)
-	}
-	col := map[string]int{}
-	for i, h := range header {
-		col[h] = i
-	}
-	for _, need := range []string{"prem", "hyp", "label", "pairID"} {
-		if _, ok := col[need]; !ok {
-			return nil, inputErr(path, 1, need, "column missing")
-		}
+		return nil, err
 	}
 	var out []Item
 	for {
-		rec, err := r.Read()
+		rec, line, err := nextRow(r, path)
 		if errors.Is(err, io.EOF) {
 			return out, nil
 		}
-		line, _ := r.FieldPos(0)
 		if err != nil {
-			return nil, inputErr(path, line, "", "%v", err)
+			return nil, err
 		}
 		y := rec[col["label"]]
 		if LabelIndex(y) < 0 {
@@ -425,29 +409,18 @@ func ReadESNLI(path string) ([]Item, error) {
 		return nil, err
 	}
 	defer f.Close()
-	r := csv.NewReader(f)
-	header, err := r.Read()
+	r, col, err := readHeader(f, path, ',', "gold_label", "Sentence1", "Sentence2", "Sentence2_marked_1")
 	if err != nil {
-		return nil, inputErr(path, 1, "", "no header: %v", err)
-	}
-	col := map[string]int{}
-	for i, h := range header {
-		col[h] = i
-	}
-	for _, need := range []string{"gold_label", "Sentence1", "Sentence2", "Sentence2_marked_1"} {
-		if _, ok := col[need]; !ok {
-			return nil, inputErr(path, 1, need, "column missing")
-		}
+		return nil, err
 	}
 	var out []Item
 	for {
-		rec, err := r.Read()
+		rec, line, err := nextRow(r, path)
 		if errors.Is(err, io.EOF) {
 			return out, nil
 		}
-		line, _ := r.FieldPos(0)
 		if err != nil {
-			return nil, inputErr(path, line, "", "%v", err)
+			return nil, err
 		}
 		y := rec[col["gold_label"]]
 		if LabelIndex(y) < 0 {
@@ -489,19 +462,40 @@ func markedWords(marked string) []int {
 }
 
 func trimPunct(text string, s profile.Span) profile.Span {
-	for s.Start < s.End {
-		r, n := utf8.DecodeRuneInString(text[s.Start:])
-		if !unicode.IsPunct(r) {
-			break
-		}
-		s.Start += n
-	}
-	for s.End > s.Start {
-		r, n := utf8.DecodeLastRuneInString(text[:s.End])
-		if !unicode.IsPunct(r) {
-			break
-		}
-		s.End -= n
-	}
+	s.Start, s.End = textpos.Trim(text, s.Start, s.End, unicode.IsPunct)
 	return s
+}
+
+// readHeader starts a CSV (or TSV) reader and maps its header's column names, requiring need.
+func readHeader(f io.Reader, path string, comma rune, need ...string) (*csv.Reader, map[string]int, error) {
+	r := csv.NewReader(f)
+	r.Comma = comma
+	r.LazyQuotes = true
+	header, err := r.Read()
+	if err != nil {
+		return nil, nil, inputErr(path, 1, "", "no header: %v", err)
+	}
+	col := map[string]int{}
+	for i, h := range header {
+		col[h] = i
+	}
+	for _, n := range need {
+		if _, ok := col[n]; !ok {
+			return nil, nil, inputErr(path, 1, n, "column missing")
+		}
+	}
+	return r, col, nil
+}
+
+// nextRow reads a row and the line it starts on.
+func nextRow(r *csv.Reader, path string) ([]string, int, error) {
+	rec, err := r.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, 0, io.EOF
+	}
+	line, _ := r.FieldPos(0)
+	if err != nil {
+		return nil, line, inputErr(path, line, "", "%v", err)
+	}
+	return rec, line, nil
 }

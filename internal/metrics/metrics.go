@@ -129,17 +129,24 @@ func ECE(confidence []float64, correct []bool, bins int) float64 {
 // thresholds (each distinct score, high to low) of (R_n - R_{n-1}) P_n. Without positives it is
 // undefined; scikit-learn warns, gainsay returns 0.
 func AveragePrecision(positive []bool, score []float64) float64 {
-	idx := sortedByScore(score)
-	totalPos := 0
-	for _, p := range positive {
-		if p {
-			totalPos++
-		}
-	}
-	if totalPos == 0 {
+	pos := countTrue(positive)
+	if pos == 0 {
 		return 0
 	}
-	ap, tp, fp, prevRecall := 0.0, 0, 0, 0.0
+	ap, prevRecall := 0.0, 0.0
+	thresholdSteps(positive, score, func(_ float64, tp, fp int) {
+		recall := float64(tp) / float64(pos)
+		ap += (recall - prevRecall) * float64(tp) / float64(tp+fp)
+		prevRecall = recall
+	})
+	return ap
+}
+
+// thresholdSteps walks the distinct scores from high to low and calls step with each score used as a
+// threshold and the true and false positives at it (ties counted together).
+func thresholdSteps(positive []bool, score []float64, step func(threshold float64, tp, fp int)) {
+	idx := sortedByScore(score)
+	tp, fp := 0, 0
 	for i := 0; i < len(idx); {
 		j := i
 		for j < len(idx) && score[idx[j]] == score[idx[i]] {
@@ -150,13 +157,19 @@ func AveragePrecision(positive []bool, score []float64) float64 {
 			}
 			j++
 		}
-		recall := float64(tp) / float64(totalPos)
-		precision := float64(tp) / float64(tp+fp)
-		ap += (recall - prevRecall) * precision
-		prevRecall = recall
+		step(score[idx[i]], tp, fp)
 		i = j
 	}
-	return ap
+}
+
+func countTrue(b []bool) int {
+	n := 0
+	for _, x := range b {
+		if x {
+			n++
+		}
+	}
+	return n
 }
 
 // sortedByScore returns indexes ordered by descending score (stable).
@@ -210,32 +223,15 @@ func Sweep(positive []bool, score []float64) []SweepPoint {
 // recall whose precision is at least target (the lowest such threshold on ties). ok is false when no
 // threshold reaches the target.
 func ThresholdForPrecision(positive []bool, score []float64, target float64) (SweepPoint, bool) {
-	idx := sortedByScore(score)
-	pos := 0
-	for _, p := range positive {
-		if p {
-			pos++
-		}
-	}
+	pos := countTrue(positive)
 	var best SweepPoint
 	found := false
-	tp, fp := 0, 0
-	for i := 0; i < len(idx); {
-		j := i
-		for j < len(idx) && score[idx[j]] == score[idx[i]] {
-			if positive[idx[j]] {
-				tp++
-			} else {
-				fp++
-			}
-			j++
-		}
+	thresholdSteps(positive, score, func(t float64, tp, fp int) {
 		p, r := ratio(tp, tp+fp), ratio(tp, pos)
 		if p >= target && (!found || r >= best.Recall) {
-			best = SweepPoint{Threshold: score[idx[i]], Precision: p, Recall: r, F1: f1(p, r), Flagged: tp + fp}
+			best = SweepPoint{Threshold: t, Precision: p, Recall: r, F1: f1(p, r), Flagged: tp + fp}
 			found = true
 		}
-		i = j
-	}
+	})
 	return best, found
 }

@@ -47,3 +47,33 @@ func (x Index) Bytes(r int) int {
 	}
 	return len(x.s)
 }
+
+// Trim narrows the byte range [start, end) of s by the runes that f matches, at both ends.
+func Trim(s string, start, end int, f func(rune) bool) (int, int) {
+	start = TrimLeft(s, start, end, f)
+	return start, TrimRight(s, start, end, f)
+}
+
+// TrimLeft moves start past the runes that f matches (not beyond end).
+func TrimLeft(s string, start, end int, f func(rune) bool) int {
+	for start < end {
+		r, n := utf8.DecodeRuneInString(s[start:])
+		if !f(r) {
+			break
+		}
+		start += n
+	}
+	return start
+}
+
+// TrimRight moves end back over the runes that f matches (not before start).
+func TrimRight(s string, start, end int, f func(rune) bool) int {
+	for end > start {
+		r, n := utf8.DecodeLastRuneInString(s[:end])
+		if !f(r) {
+			break
+		}
+		end -= n
+	}
+	return end
+}
