@@ -7,6 +7,7 @@ reference; the Go side tokenises with its own code."""
 import json
 import os
 import subprocess
+import sys
 
 import pytest
 from tokenizers import Tokenizer
@@ -41,4 +42,4 @@ def test_go_align_matches_python(tmp_path, root, gainsay_bin, family):
 def test_committed_references_are_current(root):
     """The expected files the Go tests read still match what tokenizers and gainsay_train compute."""
     script = os.path.join(root, "scripts", "reference", "align_reference.py")
-    subprocess.run(["python", script, "--check"], check=True)
+    subprocess.run([sys.executable, script, "--check"], check=True)
