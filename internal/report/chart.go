@@ -51,10 +51,17 @@ const (
 	rowGap     = 12.0
 )
 
-// axisMax rounds the largest interval end up to the next 10%, at least 10%.
-func axisMax(v float64) float64 {
-	m := math.Ceil(v*10-1e-9) / 10
-	return math.Min(1, math.Max(0.1, m))
+// axis picks a round step (1, 2, 2.5, 5, 10, 20 or 25 points) and the axis end: the largest value
+// rounded up to a step, with at most 6 steps.
+func axis(v float64) (end, step float64) {
+	v = math.Max(v, 0.01)
+	for _, step = range []float64{0.01, 0.02, 0.025, 0.05, 0.1, 0.2, 0.25} {
+		if v/step <= 6+1e-9 {
+			break
+		}
+	}
+	end = math.Min(1, math.Ceil(v/step-1e-9)*step)
+	return end, step
 }
 
 func factChart(p *Page) Chart {
@@ -64,11 +71,11 @@ func factChart(p *Page) Chart {
 			top = math.Max(top, r.CI.High)
 		}
 	}
-	c := Chart{AxisX0: labelWidth, AxisW: barArea, Max: axisMax(top), Width: int(labelWidth + barArea + 150)}
+	end, step := axis(top)
+	c := Chart{AxisX0: labelWidth, AxisW: barArea, Max: end, Width: int(labelWidth + barArea + 150)}
 	scale := func(r float64) float64 { return labelWidth + barArea*r/c.Max }
-	for k := 0; k <= 5; k++ {
-		v := c.Max * float64(k) / 5
-		c.Ticks = append(c.Ticks, Tick{X: scale(v), Label: fmt.Sprintf("%.0f%%", 100*v)})
+	for v := 0.0; v <= end+1e-9; v += step {
+		c.Ticks = append(c.Ticks, Tick{X: scale(v), Label: tickLabel(v)})
 	}
 	y := 8.0
 	for _, f := range p.Facts {
@@ -112,14 +119,13 @@ func trendChart(p *Page) *Trend {
 	for _, f := range p.Files {
 		top = math.Max(top, f.Summary.Overall.CI.High)
 	}
-	maxV := axisMax(top)
+	maxV, step := axis(top)
 	const plotH, barW, gap, left = 180.0, 56.0, 36.0, 48.0
 	base := plotH + 20
 	t := &Trend{Base: base, Width: int(left + float64(len(p.Files))*(barW+gap) + gap), Height: int(base + 48)}
 	yOf := func(v float64) float64 { return base - plotH*v/maxV }
-	for k := 0; k <= 4; k++ {
-		v := maxV * float64(k) / 4
-		t.Ticks = append(t.Ticks, Tick{X: yOf(v), Label: fmt.Sprintf("%.0f%%", 100*v)})
+	for v := 0.0; v <= maxV+1e-9; v += step {
+		t.Ticks = append(t.Ticks, Tick{X: yOf(v), Label: tickLabel(v)})
 	}
 	for i, f := range p.Files {
 		r := f.Summary.Overall
@@ -131,6 +137,13 @@ func trendChart(p *Page) *Trend {
 		})
 	}
 	return t
+}
+
+func tickLabel(v float64) string {
+	if math.Abs(v*100-math.Round(v*100)) < 1e-6 {
+		return fmt.Sprintf("%.0f%%", 100*v)
+	}
+	return fmt.Sprintf("%.1f%%", 100*v)
 }
 
 func shorten(s string, n int) string {

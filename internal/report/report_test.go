@@ -170,3 +170,14 @@ func TestCapKeepsChartsExact(t *testing.T) {
 	assert.Equal(t, n, p.Files[0].Summary.Overall.N)
 	assert.Nil(t, p.Trend, "one file, no per-file chart")
 }
+
+func TestAxis(t *testing.T) {
+	cases := []struct{ top, end, step float64 }{
+		{0.983, 1, 0.2}, {0.3, 0.3, 0.05}, {0.07, 0.08, 0.02}, {0, 0.01, 0.01}, {0.55, 0.6, 0.1},
+	}
+	for _, c := range cases {
+		end, step := axis(c.top)
+		assert.InDelta(t, c.step, step, 1e-12, "top %v", c.top)
+		assert.InDelta(t, c.end, end, 1e-9, "top %v", c.top)
+	}
+}
