@@ -132,7 +132,7 @@ func TestLoadAnswersEveryRequestOnceAndLikeCheck(t *testing.T) {
 
 func TestBatcherMergesConcurrentCallers(t *testing.T) {
 	m := tinyModel(t)
-	b := NewBatcher(m, 1000, 200*time.Millisecond, 16)
+	b := NewBatcher(m, 1000, time.Second, 16)
 	runs := make(chan int, 16)
 	b.runs = runs
 	defer b.Close()
@@ -220,10 +220,19 @@ func TestGracefulShutdownFinishesInFlight(t *testing.T) {
 
 	done := make(chan int, 1)
 	go func() {
-		resp, _ := post(t, url, request(0, 0, 2))
+		resp, err := http.Post(url+"/v1/check", "application/json", bytes.NewReader(mustJSON(request(0, 0, 2))))
+		if err != nil {
+			done <- -1
+			return
+		}
+		resp.Body.Close()
 		done <- resp.StatusCode
 	}()
-	time.Sleep(100 * time.Millisecond)
+	// Shut down only once the request is being worked on.
+	for deadline := time.Now().Add(10 * time.Second); svc.inflight.Load() == 0; {
+		require.True(t, time.Now().Before(deadline), "the request never arrived")
+		time.Sleep(5 * time.Millisecond)
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	require.NoError(t, srv.Shutdown(ctx))
@@ -231,4 +240,12 @@ func TestGracefulShutdownFinishesInFlight(t *testing.T) {
 	assert.Equal(t, http.StatusOK, <-done, "the request in flight was answered")
 	_, err = http.Post(url+"/v1/check", "application/json", strings.NewReader("{}"))
 	assert.Error(t, err, "no new connections after shutdown")
+}
+
+func mustJSON(v any) []byte {
+	b, err := json.Marshal(v)
+	if err != nil {
+		panic(err)
+	}
+	return b
 }
