@@ -32,8 +32,11 @@ type Tokens struct {
 	Error   string   `json:"error,omitempty"`
 }
 
-// Record aligns one record: the reply text is tokenised on its own, without special tokens.
-func Record(rec *profile.Record, tok *nli.Tokenizer) (Tokens, error) {
+// Record aligns one record: the reply text is tokenised on its own, without special tokens. With
+// normalize, the record's weights are divided by their largest, so that the strongest token weighs 1:
+// a confident model can blame the right word with a small drop in probability, and a training loop
+// may want the localisation rather than the size.
+func Record(rec *profile.Record, tok *nli.Tokenizer, normalize bool) (Tokens, error) {
 	out := Tokens{ID: rec.ID, Verdict: rec.Verdict, SequenceFlag: rec.Verdict == profile.Contradiction,
 		Score: rec.Score, Error: rec.Error, TokenIDs: []int{}, Weights: []profile.Prob{}, Offsets: [][2]int{}}
 	pieces, err := tok.Tokenize(rec.Text)
@@ -45,6 +48,9 @@ func Record(rec *profile.Record, tok *nli.Tokenizer) (Tokens, error) {
 		spans = append(spans, f.Spans...)
 	}
 	weights := Weights(rec.Text, pieces, spans)
+	if normalize {
+		Normalize(weights)
+	}
 	idx := textpos.New(rec.Text)
 	for i, p := range pieces {
 		out.TokenIDs = append(out.TokenIDs, p.ID)
@@ -76,3 +82,17 @@ func Weights(text string, pieces []nli.Piece, spans []profile.PenaltySpan) []flo
 }
 
 func isWhiteSpace(r rune) bool { return unicode.Is(unicode.White_Space, r) }
+
+// Normalize divides weights by their largest in place (nothing when all are 0).
+func Normalize(weights []float64) {
+	top := 0.0
+	for _, w := range weights {
+		top = max(top, w)
+	}
+	if top == 0 {
+		return
+	}
+	for i := range weights {
+		weights[i] /= top
+	}
+}

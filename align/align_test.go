@@ -41,7 +41,7 @@ func TestAlignParity(t *testing.T) {
 			require.NoError(t, err)
 			require.Len(t, want, len(recs))
 			for i := range recs {
-				got, err := Record(&recs[i], tok)
+				got, err := Record(&recs[i], tok, false)
 				require.NoError(t, err)
 				w := want[i]
 				require.Equal(t, w.ID, got.ID)
@@ -74,4 +74,13 @@ func TestWeightsRule(t *testing.T) {
 	for i := range want {
 		assert.InDelta(t, want[i], got[i], 1e-12, "token %d", i)
 	}
+}
+
+func TestNormalize(t *testing.T) {
+	w := []float64{0, 0.0048, 0.0012, 0}
+	Normalize(w)
+	assert.Equal(t, []float64{0, 1, 0.25, 0}, w)
+	zero := []float64{0, 0}
+	Normalize(zero)
+	assert.Equal(t, []float64{0, 0}, zero)
 }

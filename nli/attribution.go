@@ -108,14 +108,17 @@ type WordWeight struct {
 }
 
 // Occlusions are the inputs of leave-one-word-out attribution for one pair: the whole pair first, then
-// the pair without each hypothesis word in turn.
+// the pair without each hypothesis word in turn; when read both ways, the same again with premise and
+// hypothesis swapped.
 type Occlusions struct {
 	Encodings []Encoding
 	words     []Word
+	both      bool
 }
 
-// Occlusions prepares the attribution of one pair.
-func (m *Model) Occlusions(p Pair, how Occlusion) (Occlusions, error) {
+// Occlusions prepares the attribution of one pair. With both, every variant is also read the other way
+// round (the hypothesis as premise).
+func (m *Model) Occlusions(p Pair, how Occlusion, both bool) (Occlusions, error) {
 	prem, err := m.tok.Tokenize(p.Premise)
 	if err != nil {
 		return Occlusions{}, err
@@ -125,8 +128,8 @@ func (m *Model) Occlusions(p Pair, how Occlusion) (Occlusions, error) {
 		return Occlusions{}, err
 	}
 	words := Words(p.Hypothesis, hyp)
-	encs := make([]Encoding, 0, len(words)+1)
-	encs = append(encs, m.tok.Assemble(prem, hyp, m.maxLen))
+	variants := make([][]Piece, 0, len(words)+1)
+	variants = append(variants, hyp)
 	mask := m.tok.MaskID()
 	for _, w := range words {
 		var variant []Piece
@@ -141,17 +144,35 @@ func (m *Model) Occlusions(p Pair, how Occlusion) (Occlusions, error) {
 		default:
 			variant = append(append([]Piece(nil), hyp[:w.first]...), hyp[w.end:]...)
 		}
-		encs = append(encs, m.tok.Assemble(prem, variant, m.maxLen))
+		variants = append(variants, variant)
 	}
-	return Occlusions{Encodings: encs, words: words}, nil
+	encs := make([]Encoding, 0, 2*len(variants))
+	for _, v := range variants {
+		encs = append(encs, m.tok.Assemble(prem, v, m.maxLen))
+	}
+	if both {
+		for _, v := range variants {
+			encs = append(encs, m.tok.Assemble(v, prem, m.maxLen))
+		}
+	}
+	return Occlusions{Encodings: encs, words: words, both: both}, nil
 }
 
-// Attribution turns the probabilities of o.Encodings, in order, into word weights.
+// Attribution turns the probabilities of o.Encodings, in order, into word weights: the drop in the
+// contradiction probability (read both ways: the smaller of the two) when the word is left out.
 func (o Occlusions) Attribution(probs []Probs) Attribution {
-	full := probs[0].Contradiction
+	n := len(o.words) + 1
+	contradiction := func(k int) float64 {
+		c := probs[k].Contradiction
+		if o.both {
+			c = min(c, probs[n+k].Contradiction)
+		}
+		return c
+	}
+	full := contradiction(0)
 	a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: o.Encodings[0].Truncated}
 	for k, w := range o.words {
-		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, full-probs[k+1].Contradiction)}
+		a.Words[k] = WordWeight{Start: w.Start, End: w.End, Weight: max(0, full-contradiction(k+1))}
 	}
 	return a
 }
@@ -163,18 +184,46 @@ type Runner interface {
 }
 
 // Scorer scores and attributes pairs with a model's tokenizer and a Runner.
+//
+// With BothWays, every pair is also read the other way round (hypothesis as premise) and counts as a
+// contradiction only as far as both readings agree: Predict returns, for each pair, the probabilities
+// of the reading with the lower contradiction probability, and Attribute weighs words by the drop in
+// that smaller probability. Contradiction is symmetric (if A contradicts B, B contradicts A), while a
+// model that sees one only one way round is usually reacting to the wording of one sentence alone, the
+// hypothesis-only artefacts of NLI data (Gururangan et al. 2018, "Annotation Artifacts in Natural
+// Language Inference Data"; Poliak et al. 2018, "Hypothesis Only Baselines in Natural Language
+// Inference"). Entailment is not symmetric, so benchmarks are scored one way (BothWays false).
 type Scorer struct {
-	Model  *Model
-	Runner Runner
+	Model    *Model
+	Runner   Runner
+	BothWays bool
 }
 
 // Predict returns the probabilities of each pair, in order.
 func (s Scorer) Predict(pairs []Pair) ([]Probs, error) {
-	encs, err := s.Model.Encode(pairs)
+	all := pairs
+	if s.BothWays {
+		all = make([]Pair, 0, 2*len(pairs))
+		all = append(all, pairs...)
+		for _, p := range pairs {
+			all = append(all, Pair{Premise: p.Hypothesis, Hypothesis: p.Premise})
+		}
+	}
+	encs, err := s.Model.Encode(all)
 	if err != nil {
 		return nil, err
 	}
-	return s.Runner.PredictEncoded(encs)
+	probs, err := s.Runner.PredictEncoded(encs)
+	if err != nil || !s.BothWays {
+		return probs, err
+	}
+	out := probs[:len(pairs)]
+	for i, rev := range probs[len(pairs):] {
+		if rev.Contradiction < out[i].Contradiction {
+			out[i] = rev
+		}
+	}
+	return out, nil
 }
 
 // Attribute computes leave-one-word-out attribution for each pair: every hypothesis word is left out
@@ -184,7 +233,7 @@ func (s Scorer) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
 	occ := make([]Occlusions, len(pairs))
 	var all []Encoding
 	for i, p := range pairs {
-		o, err := s.Model.Occlusions(p, how)
+		o, err := s.Model.Occlusions(p, how, s.BothWays)
 		if err != nil {
 			return nil, fmt.Errorf("pair %d: %w", i, err)
 		}
@@ -205,19 +254,19 @@ func (s Scorer) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
 	return out, nil
 }
 
-// Attribute is Scorer{m, m}.Attribute.
+// Attribute is Scorer{Model: m, Runner: m}.Attribute: pairs read one way.
 func (m *Model) Attribute(pairs []Pair, how Occlusion) ([]Attribution, error) {
-	return Scorer{m, m}.Attribute(pairs, how)
+	return Scorer{Model: m, Runner: m}.Attribute(pairs, how)
 }
 
 // ScoreKept scores a pair once per mask, keeping the hypothesis words (as Words numbers them) whose
 // mask entry is true and deleting the others. Evaluation uses it for the comprehensiveness and
 // sufficiency of a rationale.
 func (m *Model) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
-	return Scorer{m, m}.ScoreKept(p, keep)
+	return Scorer{Model: m, Runner: m}.ScoreKept(p, keep)
 }
 
-// ScoreKept is Model.ScoreKept through the Scorer's Runner.
+// ScoreKept is Model.ScoreKept through the Scorer's Runner, read one way whatever BothWays says.
 func (s Scorer) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
 	m := s.Model
 	prem, err := m.tok.Tokenize(p.Premise)

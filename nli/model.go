@@ -284,7 +284,9 @@ func (m *Model) Encode(pairs []Pair) ([]Encoding, error) {
 }
 
 // Predict returns the probabilities of each pair, in order.
-func (m *Model) Predict(pairs []Pair) ([]Probs, error) { return Scorer{m, m}.Predict(pairs) }
+func (m *Model) Predict(pairs []Pair) ([]Probs, error) {
+	return Scorer{Model: m, Runner: m}.Predict(pairs)
+}
 
 // PredictEncoded runs encoded pairs through the model, BatchSize at a time. Pairs of similar length are
 // batched together and each batch is padded to its own longest pair, so that little time goes into

@@ -12,8 +12,9 @@ import (
 )
 
 // The tiny models in testdata/tiny-* are written by scripts/reference/make_tiny_models.py: their logits
-// are sums of fixed per-token weights (never: contradiction +4, not: contradiction +2, also: entailment
-// +2, neutral constant 1), so the expected probabilities below are worked by hand from the softmax.
+// are sums of fixed per-token weights (never: contradiction +4, not: contradiction +2, counted in both
+// sentences; also: entailment +2, counted in the hypothesis only where the model has token types;
+// neutral constant 1), so the expected probabilities below are worked by hand from the softmax.
 
 func openTiny(t *testing.T, name string) *Model {
 	t.Helper()
@@ -55,12 +56,35 @@ func TestLabelMapping(t *testing.T) {
 	}
 }
 
-func TestPremiseNotCountedWithTypeIDs(t *testing.T) {
-	// With token_type_ids the tiny model counts hypothesis tokens only: "never" in the premise is inert.
+func TestTokenTypesReachTheModel(t *testing.T) {
+	// tiny-wordpiece counts "also" for entailment in the hypothesis only (token type 1): in the premise
+	// it is inert, which it can only be if token_type_ids arrive as the tokenizer made them.
 	m := openTiny(t, "tiny-wordpiece")
-	got, err := m.Predict([]Pair{{"I have never been sad.", "I like boats."}})
+	got, err := m.Predict([]Pair{{"I also swim.", "I like boats."}, {"I swim.", "I also like boats."}})
 	require.NoError(t, err)
-	assertProbs(t, probsOf(0, 0, 1), got[0], "premise word")
+	assertProbs(t, probsOf(0, 0, 1), got[0], "also in the premise")
+	assertProbs(t, probsOf(0, 2, 1), got[1], "also in the hypothesis")
+}
+
+func TestBothWays(t *testing.T) {
+	// Read both ways, a pair gets the reading with the lower contradiction probability. tiny-bpe has no
+	// token types and counts "never" and "also" wherever they stand, so both readings agree; with
+	// tiny-wordpiece, "also" in the hypothesis adds entailment one way only.
+	m := openTiny(t, "tiny-wordpiece")
+	both := Scorer{Model: m, Runner: m, BothWays: true}
+	got, err := both.Predict([]Pair{{"I live on the coast.", "I have never seen the sea."}, {"I swim.", "I also never sail."}})
+	require.NoError(t, err)
+	assertProbs(t, probsOf(4, 0, 1), got[0], "never counts in both readings")
+	assertProbs(t, probsOf(4, 2, 1), got[1], "the reading with also in the hypothesis contradicts less")
+	attr, err := both.Attribute([]Pair{{"I live on the coast.", "I have never seen the sea."}}, Delete)
+	require.NoError(t, err)
+	for _, w := range attr[0].Words {
+		want := 0.0
+		if w.Start == 7 {
+			want = probsOf(4, 0, 1).Contradiction - probsOf(0, 0, 1).Contradiction
+		}
+		assert.InDelta(t, want, w.Weight, 1e-6)
+	}
 }
 
 func TestPaddingDoesNotChangeResults(t *testing.T) {

@@ -29,6 +29,7 @@ type Config struct {
 	Threshold    float64       // default threshold (profile.DefaultThreshold)
 	Occlusion    nli.Occlusion
 	Spans        profile.SpanRule
+	OneWay       bool // read pairs only as fact then sentence (see nli.Scorer.BothWays)
 }
 
 func (c *Config) defaults() {
@@ -184,7 +185,7 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 		replies[i] = profile.ParseReply(line.Bytes(), fmt.Sprintf("request replies[%d]", i), 0, s.cfg.MaxChars)
 		replies[i].Line = i + 1
 	}
-	checker := &profile.Checker{Scorer: nli.Scorer{Model: s.model, Runner: s.batcher}, Threshold: threshold,
+	checker := &profile.Checker{Scorer: nli.Scorer{Model: s.model, Runner: s.batcher, BothWays: !s.cfg.OneWay}, Threshold: threshold,
 		Occlusion: s.cfg.Occlusion, Spans: s.cfg.Spans, Model: s.name}
 	recs, _, err := checker.Check(prof, replies)
 	if err != nil {

@@ -66,7 +66,7 @@ func direct(t testing.TB, m *nli.Model, name string, req CheckRequest) []string 
 		replies[i] = profile.ParseReply(raw, fmt.Sprintf("request replies[%d]", i), 0, 0)
 		replies[i].Line = i + 1
 	}
-	recs, _, err := (&profile.Checker{Scorer: m, Model: name}).Check(prof, replies)
+	recs, _, err := (&profile.Checker{Scorer: nli.Scorer{Model: m, Runner: m, BothWays: true}, Model: name}).Check(prof, replies)
 	require.NoError(t, err)
 	out := make([]string, len(recs))
 	for i := range recs {

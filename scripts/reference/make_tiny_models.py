@@ -4,18 +4,19 @@ Each model takes the inputs of a cross-encoder and returns three logits per row:
 
     logit[label] = bias[label] + sum over counted tokens t of W[id(t), label]
 
-where a token is counted when attention_mask is 1 and, for models with token_type_ids, its type id is
-1 (the hypothesis). W is zero except for the words below. So the contradiction logit of a pair is
-4 x (number of "never" in the hypothesis) + 2 x (number of "not"), entailment has +2 per "also", and
-neutral is a constant 1. Padding changes nothing (masked out), and leaving out "never" changes the
-contradiction probability by an amount the tests compute from the softmax by hand.
+where a token is counted when attention_mask is 1; for models with token_type_ids, the entailment
+column counts hypothesis tokens (type id 1) only, as entailment is directional, while contradiction
+counts both sentences, as contradiction is symmetric. W is zero except for the words below. So the
+contradiction logit of a pair is 4 x (number of "never") + 2 x (number of "not"), entailment has +2 per
+"also" in the hypothesis, and neutral is a constant 1. Padding changes nothing (masked out), and leaving
+out "never" changes the contradiction probability by an amount the tests compute from the softmax by hand.
 
 * nli/testdata/tiny-wordpiece/: inputs input_ids, attention_mask, token_type_ids; output "logits";
   id2label in the order entailment, neutral, contradiction (as some DeBERTa NLI models);
   tokenizer: ../tokenizers/wordpiece.
 * nli/testdata/tiny-bpe/: inputs input_ids, attention_mask only (RoBERTa style); output "scores";
   id2label CONTRADICTION, NEUTRAL, ENTAILMENT (as roberta-large-mnli); tokenizer: ../tokenizers/bpe.
-  Without type ids every real token counts, premise included.
+  Without type ids every real token counts for every label, premise included.
 
 Needs the `onnx` and `tokenizers` packages.  python scripts/reference/make_tiny_models.py
 """
@@ -62,26 +63,39 @@ def build(name: str, tokenizer_dir: str, id2label: dict[int, str], output: str, 
         helper.make_tensor_value_info("input_ids", TensorProto.INT64, ["batch", "sequence"]),
         helper.make_tensor_value_info("attention_mask", TensorProto.INT64, ["batch", "sequence"]),
     ]
+    # Split W: the columns counted on every token, and (with type ids) those counted on the hypothesis.
+    directional = {c for c, lab in canon.items() if lab == "entailment"} if type_ids else set()
+    w_all, w_hyp = w.copy(), np.zeros_like(w)
+    for c in directional:
+        w_hyp[:, c], w_all[:, c] = w[:, c], 0
     nodes = [
-        helper.make_node("Gather", ["W", "input_ids"], ["emb"], axis=0),  # [B,S,3]
+        helper.make_node("Cast", ["attention_mask"], ["mask_f"], to=TensorProto.FLOAT),
+        helper.make_node("Unsqueeze", ["mask_f", "axis2"], ["mask"]),  # [B,S,1]
+        helper.make_node("Gather", ["W_all", "input_ids"], ["emb_all"], axis=0),  # [B,S,3]
+        helper.make_node("Mul", ["emb_all", "mask"], ["counted_all"]),
+        helper.make_node("ReduceSum", ["counted_all", "axis1"], ["sum_all"], keepdims=0),  # [B,3]
     ]
+    last = "sum_all"
     if type_ids:
         inputs.append(helper.make_tensor_value_info("token_type_ids", TensorProto.INT64, ["batch", "sequence"]))
-        nodes.append(helper.make_node("Mul", ["attention_mask", "token_type_ids"], ["keep_i"]))
-    else:
-        nodes.append(helper.make_node("Identity", ["attention_mask"], ["keep_i"]))
-    nodes += [
-        helper.make_node("Cast", ["keep_i"], ["keep_f"], to=TensorProto.FLOAT),
-        helper.make_node("Unsqueeze", ["keep_f", "axis2"], ["keep"]),  # [B,S,1]
-        helper.make_node("Mul", ["emb", "keep"], ["counted"]),
-        helper.make_node("ReduceSum", ["counted", "axis1"], ["summed"], keepdims=0),  # [B,3]
-        helper.make_node("Add", ["summed", "bias"], [output]),
-    ]
+        nodes += [
+            helper.make_node("Mul", ["attention_mask", "token_type_ids"], ["hyp_i"]),
+            helper.make_node("Cast", ["hyp_i"], ["hyp_f"], to=TensorProto.FLOAT),
+            helper.make_node("Unsqueeze", ["hyp_f", "axis2"], ["hyp"]),
+            helper.make_node("Gather", ["W_hyp", "input_ids"], ["emb_hyp"], axis=0),
+            helper.make_node("Mul", ["emb_hyp", "hyp"], ["counted_hyp"]),
+            helper.make_node("ReduceSum", ["counted_hyp", "axis1"], ["sum_hyp"], keepdims=0),
+            helper.make_node("Add", ["sum_all", "sum_hyp"], ["summed"]),
+        ]
+        last = "summed"
+    nodes.append(helper.make_node("Add", [last, "bias"], [output]))
+    inits = [numpy_helper.from_array(w_all, "W_all")]
+    if type_ids:
+        inits.append(numpy_helper.from_array(w_hyp, "W_hyp"))
     graph = helper.make_graph(
         nodes, f"gainsay-{name}", inputs,
         [helper.make_tensor_value_info(output, TensorProto.FLOAT, ["batch", 3])],
-        initializer=[
-            numpy_helper.from_array(w, "W"),
+        initializer=inits + [
             numpy_helper.from_array(bias, "bias"),
             numpy_helper.from_array(np.array([1], dtype=np.int64), "axis1"),
             numpy_helper.from_array(np.array([2], dtype=np.int64), "axis2"),

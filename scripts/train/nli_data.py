@@ -127,6 +127,7 @@ def held_out_sets() -> dict[str, list[Pair]]:
         "mnli-held-out": mnli(held_out=True),
         "breaking-held-out": breaking(held_out=True),
         "unrelated-snli-test": unrelated(test),
+        "unrelated-mnli-held-out": unrelated(mnli(held_out=True)),
     }
 
 

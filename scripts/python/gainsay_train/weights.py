@@ -46,8 +46,13 @@ def _encode(tokenizer, text: str):
     return list(enc["input_ids"]), [tuple(o) for o in enc["offset_mapping"]]
 
 
-def token_weights(record: dict, tokenizer) -> tuple[list[int], list[float], list[tuple[int, int]]]:
-    """Token ids of the record's reply text, the penalty weight of each, and their offsets."""
+def token_weights(record: dict, tokenizer, normalize: bool = False) -> tuple[list[int], list[float], list[tuple[int, int]]]:
+    """Token ids of the record's reply text, the penalty weight of each, and their offsets. With
+    normalize, weights are divided by their largest (as `gainsay align --normalize`)."""
     text = record.get("text", "")
     ids, offsets = _encode(tokenizer, text)
-    return ids, weights_from_offsets(text, offsets, spans_of(record)), offsets
+    weights = weights_from_offsets(text, offsets, spans_of(record))
+    top = max(weights, default=0.0)
+    if normalize and top > 0:
+        weights = [w / top for w in weights]
+    return ids, weights, offsets

@@ -17,13 +17,14 @@ from gainsay_train import read_records, token_weights
 FAMILIES = ["wordpiece", "bpe", "unigram"]
 
 
+@pytest.mark.parametrize("normalize", [False, True])
 @pytest.mark.parametrize("family", FAMILIES)
-def test_go_align_matches_python(tmp_path, root, gainsay_bin, family):
+def test_go_align_matches_python(tmp_path, root, gainsay_bin, family, normalize):
     tok_path = os.path.join(root, "nli", "testdata", "tokenizers", family, "tokenizer.json")
     records_path = os.path.join(root, "align", "testdata", "records.jsonl")
     out = tmp_path / "aligned.jsonl"
-    subprocess.run([gainsay_bin, "align", "--spans", records_path, "--tokenizer", tok_path, "--out", str(out)],
-                   check=True, capture_output=True)
+    subprocess.run([gainsay_bin, "align", "--spans", records_path, "--tokenizer", tok_path, "--out", str(out)]
+                   + (["--normalize"] if normalize else []), check=True, capture_output=True)
     tk = Tokenizer.from_file(tok_path)
     tk.no_padding()
     tk.no_truncation()
@@ -31,7 +32,7 @@ def test_go_align_matches_python(tmp_path, root, gainsay_bin, family):
     got = [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()]
     assert len(got) == len(records)
     for rec, g in zip(records, got):
-        ids, weights, offsets = token_weights(rec, tk)
+        ids, weights, offsets = token_weights(rec, tk, normalize=normalize)
         assert g["id"] == rec["id"]
         assert g["token_ids"] == ids, rec["id"]
         assert [tuple(o) for o in g["offsets"]] == offsets, rec["id"]
