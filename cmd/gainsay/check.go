@@ -1,0 +1,167 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/profile"
+)
+
+func newCheckCmd() *cobra.Command {
+	var (
+		mf                           modelFlags
+		profilePath, repliesPath     string
+		profileFormat, repliesFormat string
+		outPath, occlusion           string
+		threshold, spanMin, spanRel  float64
+		maxChars, chunk              int
+		oneWay                       bool
+	)
+	c := &cobra.Command{
+		Use:   "check --profile P --replies R",
+		Short: "Score replies against a profile and write one record per reply (JSON Lines)",
+		Long: `check splits every reply into sentences, scores each (fact, sentence) pair with the NLI model, and for
+pairs whose contradiction probability reaches --threshold finds the words that drive it: each word is
+left out in turn and the pair scored again (Li, Monroe, Jurafsky 2016, "Understanding Neural Networks
+through Representation Erasure"), all variants in shared batches. Each pair is read both ways (fact then
+sentence, and sentence then fact) and counts only as far as both readings agree: contradiction is
+symmetric, and a one-way verdict usually reacts to one sentence's wording alone (--one-way to skip). It writes one JSON object per input reply, in input order: the verdict,
+the highest contradiction probability, and the findings with their penalty spans.
+
+A reply that cannot be read (bad JSON, missing text, invalid UTF-8, over --max-reply-chars) gets a record
+with verdict "error" and the reason; the run goes on. Exit status: 0 when the run completed, 1 when it
+failed on the way, 2 when the arguments, model or profile are unusable.`,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			if profilePath == "" || repliesPath == "" {
+				return unusable(fmt.Errorf("check needs --profile and --replies"))
+			}
+			if threshold <= 0 || threshold > 1 {
+				return unusable(fmt.Errorf("--threshold must be in (0, 1]"))
+			}
+			if spanMin < 0 || spanMin > 1 || spanRel < 0 || spanRel > 1 {
+				return unusable(fmt.Errorf("--span-min-weight and --span-relative must be in [0, 1]"))
+			}
+			how, err := nli.ParseOcclusion(occlusion)
+			if err != nil {
+				return unusable(err)
+			}
+			prof, err := profile.ReadProfile(profilePath, profile.Format(profileFormat))
+			if err != nil {
+				return unusable(err)
+			}
+			rf := profile.Format(repliesFormat)
+			if rf == profile.FormatAuto {
+				if rf, err = profile.ReplyFormat(repliesPath); err != nil {
+					return unusable(err)
+				}
+			}
+			in, total, err := openReplies(cmd, repliesPath)
+			if err != nil {
+				return unusable(err)
+			}
+			defer in.Close()
+			model, name, err := mf.open(cmd)
+			if err != nil {
+				return err
+			}
+			defer model.Close()
+			out, closeOut, err := createOutput(cmd, outPath)
+			if err != nil {
+				return unusable(err)
+			}
+			checker := &profile.Checker{Scorer: nli.Scorer{Model: model, Runner: model, BothWays: !oneWay}, Threshold: threshold, Occlusion: how,
+				Spans: profile.SpanRule{MinWeight: spanMin, Relative: spanRel}, Model: name}
+			progress := newProgress(cmd.ErrOrStderr(), total)
+			st, err := checker.Run(cmd.Context(), prof, profile.NewReplyReader(in, repliesPath, rf, maxChars),
+				profile.NewRecordWriter(out), profile.RunOptions{Chunk: chunk, Progress: progress.update})
+			progress.done()
+			if cerr := closeOut(); err == nil {
+				err = cerr
+			}
+			if err != nil {
+				return err
+			}
+			fmt.Fprintln(cmd.ErrOrStderr(), summary(st))
+			return nil
+		},
+	}
+	mf.register(c)
+	f := c.Flags()
+	f.StringVar(&profilePath, "profile", "", "character profile: .yaml, .json, or .txt (one fact a line)")
+	f.StringVar(&repliesPath, "replies", "", "replies: .jsonl ({\"id\", \"text\"} a line), .txt (one a line), or - for standard input (JSON Lines)")
+	f.StringVar(&profileFormat, "profile-format", "", "profile format when the extension does not say: yaml, json or text")
+	f.StringVar(&repliesFormat, "replies-format", "", "replies format when the extension does not say: jsonl or text")
+	f.StringVarP(&outPath, "out", "o", "", "output file (default: standard output)")
+	f.Float64Var(&threshold, "threshold", profile.DefaultThreshold, "contradiction probability at which a pair is flagged")
+	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
+	f.Float64Var(&spanMin, "span-min-weight", profile.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
+	f.Float64Var(&spanRel, "span-relative", profile.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
+	f.IntVar(&maxChars, "max-reply-chars", profile.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
+	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory)")
+	f.BoolVar(&oneWay, "one-way", false, "read each pair only as fact then sentence (half the work; no check that the contradiction holds both ways)")
+	return c
+}
+
+// openReplies opens the replies file (or standard input for "-") and counts its non-blank lines for the
+// progress display (-1 when reading standard input).
+func openReplies(cmd *cobra.Command, path string) (io.ReadCloser, int, error) {
+	if path == "-" {
+		return io.NopCloser(cmd.InOrStdin()), -1, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, 0, err
+	}
+	total := 0
+	sc := bufio.NewReader(f)
+	for {
+		line, err := sc.ReadBytes('\n')
+		if len(bytes.TrimSpace(line)) > 0 {
+			total++
+		}
+		if err != nil {
+			break
+		}
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		f.Close()
+		return nil, 0, err
+	}
+	return f, total, nil
+}
+
+// createOutput opens the output file or standard output; the returned function flushes and closes it.
+func createOutput(cmd *cobra.Command, path string) (io.Writer, func() error, error) {
+	if path == "" || path == "-" {
+		return cmd.OutOrStdout(), func() error { return nil }, nil
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return f, f.Close, nil
+}
+
+func summary(st profile.Stats) string {
+	rate := 0.0
+	if s := st.Elapsed.Seconds(); s > 0 {
+		rate = float64(st.Pairs) / s
+	}
+	return fmt.Sprintf("gainsay: %s, %s, %s; %s scored, %d attributed, %.0f pairs/s",
+		plural(st.Replies, "reply", "replies"), plural(st.Contradictions, "contradiction", "contradictions"),
+		plural(st.Errors, "error", "errors"), plural(st.Pairs, "pair", "pairs"), st.Attributed, rate)
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
+}

@@ -1,0 +1,41 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/rogpeppe/go-internal/testscript"
+)
+
+func TestMain(m *testing.M) {
+	testscript.Main(m, map[string]func(){
+		"gainsay": func() { os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)) },
+	})
+}
+
+// TestScripts runs the CLI scripts in testdata/script. $TINY and $TINYBPE are nli's test models, whose
+// outputs are known functions of their input (scripts/reference/make_tiny_models.py), so the golden
+// records are exact. GAINSAY_UPDATE_GOLDEN=1 rewrites the golden files in the scripts.
+func TestScripts(t *testing.T) {
+	tiny, err := filepath.Abs("../../nli/testdata/tiny-wordpiece")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tinyBPE, _ := filepath.Abs("../../nli/testdata/tiny-bpe")
+	testscript.Run(t, testscript.Params{
+		Dir:                 "testdata/script",
+		RequireExplicitExec: true,
+		UpdateScripts:       os.Getenv("GAINSAY_UPDATE_GOLDEN") == "1",
+		Setup: func(e *testscript.Env) error {
+			e.Setenv("TINY", tiny)
+			e.Setenv("TINYBPE", tinyBPE)
+			for _, k := range []string{"GAINSAY_ORT_LIB", "GAINSAY_HOME", "HOME", "XDG_DATA_HOME"} {
+				if v, ok := os.LookupEnv(k); ok {
+					e.Setenv(k, v)
+				}
+			}
+			return nil
+		},
+	})
+}
