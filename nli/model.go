@@ -55,6 +55,7 @@ type Model struct {
 	batchSize int
 	sha256    string
 	runNanos  atomic.Int64 // time spent inside ONNX Runtime's Run, for benchmarks
+	runRows   atomic.Int64 // encoded pairs run
 }
 
 // Files a model folder must hold.
@@ -267,6 +268,9 @@ func (m *Model) MaxLength() int { return m.maxLen }
 // tokenising, padding, attribution bookkeeping and output.
 func (m *Model) RunTime() time.Duration { return time.Duration(m.runNanos.Load()) }
 
+// Rows is the number of encoded pairs run so far (each reading and each attribution variant counts).
+func (m *Model) Rows() int64 { return m.runRows.Load() }
+
 // SHA256 is the hex SHA-256 of model.onnx.
 func (m *Model) SHA256() string { return m.sha256 }
 
@@ -363,6 +367,7 @@ func (m *Model) run(batch []*Encoding) ([]Probs, error) {
 	start := time.Now()
 	err := m.session.Run(values, outputs)
 	m.runNanos.Add(int64(time.Since(start)))
+	m.runRows.Add(int64(b))
 	if err != nil {
 		return nil, fmt.Errorf("onnxruntime: %w", err)
 	}

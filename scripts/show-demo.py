@@ -11,7 +11,7 @@ with open(path, encoding="utf-8") as f:
         r = json.loads(line)
         print(f"{r['id']}  {r['verdict']:13} {r['score']:.3f}  {r['text']}")
         for fd in r["findings"][:3]:
-            spans = ", ".join(f"{s['text']!r} {s['weight']:.2f}" for s in fd["spans"]) or "no single word"
+            spans = ", ".join(f"{s['text']!r} {s['weight']:.3f}" for s in fd["spans"]) or "no single word"
             print(f"      contradicts {fd['fact_id']:8} p={fd['probs']['contradiction']:.3f}  culprits: {spans}")
         if len(r["findings"]) > 3:
             print(f"      ... and {len(r['findings']) - 3} more findings")

@@ -121,8 +121,12 @@ func Pairs(m Model, items []Item, opts Options) (*Report, error) {
 	r.Classification = classification(metrics.NewConfusion(Labels, truth, pred), metrics.ECE(conf, correct, 10))
 	r.Contradiction = thresholds(isC, pc, opts.TargetPrecision)
 	if opts.Rationales {
-		if r.Rationales, err = rationales(m, items, probs, opts); err != nil {
+		ra, err := rationales(m, items, probs, opts)
+		if err != nil {
 			return nil, err
+		}
+		if ra.Instances > 0 {
+			r.Rationales = ra
 		}
 	}
 	return r, nil
