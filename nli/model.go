@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"maps"
 	"math"
 	"os"
 	"slices"
@@ -92,7 +93,9 @@ func ReadConfig(data []byte) (Config, [3]int, error) {
 		return c, idx, fmt.Errorf("%s: id2label has %d labels; an NLI model needs exactly contradiction, entailment and neutral", FileConfig, len(c.ID2Label))
 	}
 	idx = [3]int{-1, -1, -1}
-	for k, v := range c.ID2Label {
+	keys := slices.Sorted(maps.Keys(c.ID2Label)) // a stable order, for stable messages
+	for _, k := range keys {
+		v := c.ID2Label[k]
 		var i int
 		if _, err := fmt.Sscanf(k, "%d", &i); err != nil || i < 0 || i > 2 {
 			return c, idx, fmt.Errorf("%s: id2label key %q is not 0, 1 or 2", FileConfig, k)
