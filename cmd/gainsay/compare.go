@@ -88,14 +88,7 @@ func writeComparison(w io.Writer, sums []rates.Summary) {
 		}
 		fmt.Fprintf(tw, "%s\t%d\t%d\t%s [%s, %s]\t%s\n", s.Name, s.Overall.N, s.Errors, pct(s.Overall.Rate), pct(s.Overall.CI.Low), pct(s.Overall.CI.High), change)
 	}
-	var facts []string
-	for _, s := range sums {
-		for _, f := range s.Facts {
-			if !slices.Contains(facts, f) {
-				facts = append(facts, f)
-			}
-		}
-	}
+	facts := rates.Facts(sums)
 	if len(facts) > 0 {
 		fmt.Fprint(tw, "\nfact")
 		for _, s := range sums {
@@ -107,7 +100,7 @@ func writeComparison(w io.Writer, sums []rates.Summary) {
 			for _, s := range sums {
 				fmt.Fprintf(tw, "\t%s", pct(s.PerFact[f].Rate))
 			}
-			first, last := rateOf(sums[0], f), rateOf(sums[len(sums)-1], f)
+			first, last := sums[0].FactRate(f), sums[len(sums)-1].FactRate(f)
 			fmt.Fprintf(tw, "\t%s\n", changeCell(rates.Compare(first, last)))
 		}
 	}
@@ -124,14 +117,6 @@ func writeComparison(w io.Writer, sums []rates.Summary) {
 		fmt.Fprintf(w, "\nnote: the files were checked at different thresholds %v; their rates are not directly comparable\n", thresholds)
 	}
 	fmt.Fprintln(w, "\nRates count automatic judgements, which are sometimes wrong; review samples before drawing conclusions.")
-}
-
-// rateOf is the fact's rate in a summary, zero over the summary's replies when the fact is absent.
-func rateOf(s rates.Summary, fact string) rates.Rate {
-	if r, ok := s.PerFact[fact]; ok {
-		return r
-	}
-	return rates.NewRate(0, s.Overall.N)
 }
 
 type comparisonFile struct {
@@ -151,7 +136,7 @@ func comparisonJSON(sums []rates.Summary) []comparisonFile {
 		out[i].Change = &ch
 		out[i].PerFactChange = map[string]rates.Change{}
 		for _, f := range s.Facts {
-			out[i].PerFactChange[f] = rates.Compare(rateOf(sums[0], f), rateOf(s, f))
+			out[i].PerFactChange[f] = rates.Compare(sums[0].FactRate(f), s.FactRate(f))
 		}
 	}
 	return out

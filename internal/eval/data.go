@@ -110,6 +110,15 @@ func inputErr(file string, line int, field, format string, args ...any) error {
 // (contradiction, entailment or neutral), and optionally the gold culprits of the hypothesis, either as
 // words ("culprits": ["never"]) or as code-point ranges ("culprit_spans": [[7, 12]]).
 func ReadPairs(path string) ([]Item, error) {
+	return readJSONLines(path, func(raw []byte, line int) (Item, bool, error) {
+		it, err := parsePair(path, line, raw)
+		return it, true, err
+	})
+}
+
+// readJSONLines calls parse on every non-blank line of a JSON Lines file and keeps the items it
+// returns with keep set; the first error stops the reading.
+func readJSONLines(path string, parse func(raw []byte, line int) (it Item, keep bool, err error)) ([]Item, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, err
@@ -125,11 +134,13 @@ func ReadPairs(path string) ([]Item, error) {
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", path, err)
 		}
-		it, err := parsePair(path, line, raw)
+		it, keep, err := parse(raw, line)
 		if err != nil {
 			return nil, err
 		}
-		out = append(out, it)
+		if keep {
+			out = append(out, it)
+		}
 	}
 }
 
@@ -289,21 +300,7 @@ var BreakingHeldOut = map[string]bool{
 // differ from the premise (by construction one word or phrase replaced). heldOut keeps only the
 // categories in BreakingHeldOut.
 func ReadBreaking(path string, heldOut bool) ([]Item, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	var out []Item
-	s := jsonl.NewScanner(f)
-	for {
-		raw, line, err := s.Next()
-		if errors.Is(err, io.EOF) {
-			return out, nil
-		}
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w", path, err)
-		}
+	return readJSONLines(path, func(raw []byte, line int) (Item, bool, error) {
 		var v struct {
 			S1       string          `json:"sentence1"`
 			S2       string          `json:"sentence2"`
@@ -312,19 +309,17 @@ func ReadBreaking(path string, heldOut bool) ([]Item, error) {
 			PairID   json.RawMessage `json:"pairID"`
 		}
 		if err := json.Unmarshal(raw, &v); err != nil {
-			return nil, inputErr(path, line, "", "not a Breaking NLI row: %v", err)
+			return Item{}, false, inputErr(path, line, "", "not a Breaking NLI row: %v", err)
 		}
 		if v.S1 == "" || v.S2 == "" {
-			return nil, inputErr(path, line, "sentence1", "missing sentence1 or sentence2")
+			return Item{}, false, inputErr(path, line, "sentence1", "missing sentence1 or sentence2")
 		}
 		if LabelIndex(v.Label) < 0 {
-			return nil, inputErr(path, line, "gold_label", "%q is not contradiction, entailment or neutral", v.Label)
+			return Item{}, false, inputErr(path, line, "gold_label", "%q is not contradiction, entailment or neutral", v.Label)
 		}
-		if !heldOut || BreakingHeldOut[v.Category] {
-			out = append(out, Item{Premise: v.S1, Hypothesis: v.S2, Label: v.Label,
-				Gold: substituted(v.S1, v.S2), Source: "breaking:" + string(v.PairID)})
-		}
-	}
+		it := Item{Premise: v.S1, Hypothesis: v.S2, Label: v.Label, Gold: substituted(v.S1, v.S2), Source: "breaking:" + string(v.PairID)}
+		return it, !heldOut || BreakingHeldOut[v.Category], nil
+	})
 }
 
 // substituted returns the hypothesis words between the longest common prefix and suffix of the two
@@ -369,34 +364,11 @@ func unquoteTwice(s string) string {
 // ReadTaxiNLI reads the TaxiNLI TSV of MultiNLI dev pairs (columns prem, hyp, label, pairID). heldOut
 // keeps only the rows MNLIHeldOut selects.
 func ReadTaxiNLI(path string, heldOut bool) ([]Item, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	r, col, err := readHeader(f, path, '\t', "prem", "hyp", "label", "pairID")
-	if err != nil {
-		return nil, err
-	}
-	var out []Item
-	for {
-		rec, line, err := nextRow(r, path)
-		if errors.Is(err, io.EOF) {
-			return out, nil
-		}
-		if err != nil {
-			return nil, err
-		}
-		y := rec[col["label"]]
-		if LabelIndex(y) < 0 {
-			return nil, inputErr(path, line, "label", "%q is not contradiction, entailment or neutral", y)
-		}
+	return readTable(path, '\t', "label", []string{"prem", "hyp", "pairID"}, func(rec []string, col map[string]int, label string) (Item, bool) {
 		id := rec[col["pairID"]]
-		if heldOut && !MNLIHeldOut(id) {
-			continue
-		}
-		out = append(out, Item{Premise: unquoteTwice(rec[col["prem"]]), Hypothesis: unquoteTwice(rec[col["hyp"]]), Label: y, Source: "mnli:" + id})
-	}
+		it := Item{Premise: unquoteTwice(rec[col["prem"]]), Hypothesis: unquoteTwice(rec[col["hyp"]]), Label: label, Source: "mnli:" + id}
+		return it, !heldOut || MNLIHeldOut(id)
+	})
 }
 
 // ReadESNLI reads e-SNLI's CSV (pairID, gold_label, Sentence1, Sentence2, then three annotations with
@@ -404,49 +376,24 @@ func ReadTaxiNLI(path string, heldOut bool) ([]Item, error) {
 // attached to a marked word is not part of the gold range. heldOut changes nothing: the rows shipped in
 // shared/data are all held out.
 func ReadESNLI(path string) ([]Item, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	r, col, err := readHeader(f, path, ',', "gold_label", "Sentence1", "Sentence2", "Sentence2_marked_1")
-	if err != nil {
-		return nil, err
-	}
-	var out []Item
-	for {
-		rec, line, err := nextRow(r, path)
-		if errors.Is(err, io.EOF) {
-			return out, nil
-		}
-		if err != nil {
-			return nil, err
-		}
-		y := rec[col["gold_label"]]
-		if LabelIndex(y) < 0 {
-			return nil, inputErr(path, line, "gold_label", "%q is not contradiction, entailment or neutral", y)
-		}
+	return readTable(path, ',', "gold_label", []string{"Sentence1", "Sentence2", "Sentence2_marked_1"}, func(rec []string, col map[string]int, label string) (Item, bool) {
 		hyp := rec[col["Sentence2"]]
 		gold := map[int]bool{}
 		for k := 1; k <= 3; k++ {
-			c, ok := col[fmt.Sprintf("Sentence2_marked_%d", k)]
-			if !ok {
-				continue
-			}
-			for _, i := range markedWords(rec[c]) {
-				gold[i] = true
+			if c, ok := col[fmt.Sprintf("Sentence2_marked_%d", k)]; ok {
+				for _, i := range markedWords(rec[c]) {
+					gold[i] = true
+				}
 			}
 		}
-		words := spaceWords(hyp)
 		var spans []profile.Span
-		for i, w := range words {
+		for i, w := range spaceWords(hyp) {
 			if gold[i] {
 				spans = append(spans, trimPunct(hyp, w))
 			}
 		}
-		out = append(out, Item{Premise: rec[col["Sentence1"]], Hypothesis: hyp, Label: y, Gold: spans,
-			Source: fmt.Sprintf("esnli:%s", rec[col["pairID"]])})
-	}
+		return Item{Premise: rec[col["Sentence1"]], Hypothesis: hyp, Label: label, Gold: spans, Source: "esnli:" + rec[col["pairID"]]}, true
+	})
 }
 
 // markedWords returns the positions, among the space-separated words, of the words wrapped in stars.
@@ -466,36 +413,47 @@ func trimPunct(text string, s profile.Span) profile.Span {
 	return s
 }
 
-// readHeader starts a CSV (or TSV) reader and maps its header's column names, requiring need.
-func readHeader(f io.Reader, path string, comma rune, need ...string) (*csv.Reader, map[string]int, error) {
+// readTable reads a CSV (or TSV) file with a header that has labelCol and need among its columns, checks
+// each row's label, and keeps the items row returns with keep set.
+func readTable(path string, comma rune, labelCol string, need []string,
+	row func(rec []string, col map[string]int, label string) (it Item, keep bool)) ([]Item, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
 	r := csv.NewReader(f)
 	r.Comma = comma
 	r.LazyQuotes = true
 	header, err := r.Read()
 	if err != nil {
-		return nil, nil, inputErr(path, 1, "", "no header: %v", err)
+		return nil, inputErr(path, 1, "", "no header: %v", err)
 	}
 	col := map[string]int{}
 	for i, h := range header {
 		col[h] = i
 	}
-	for _, n := range need {
+	for _, n := range append([]string{labelCol}, need...) {
 		if _, ok := col[n]; !ok {
-			return nil, nil, inputErr(path, 1, n, "column missing")
+			return nil, inputErr(path, 1, n, "column missing")
 		}
 	}
-	return r, col, nil
-}
-
-// nextRow reads a row and the line it starts on.
-func nextRow(r *csv.Reader, path string) ([]string, int, error) {
-	rec, err := r.Read()
-	if errors.Is(err, io.EOF) {
-		return nil, 0, io.EOF
+	var out []Item
+	for {
+		rec, err := r.Read()
+		if errors.Is(err, io.EOF) {
+			return out, nil
+		}
+		line, _ := r.FieldPos(0)
+		if err != nil {
+			return nil, inputErr(path, line, "", "%v", err)
+		}
+		label := rec[col[labelCol]]
+		if LabelIndex(label) < 0 {
+			return nil, inputErr(path, line, labelCol, "%q is not contradiction, entailment or neutral", label)
+		}
+		if it, keep := row(rec, col, label); keep {
+			out = append(out, it)
+		}
 	}
-	line, _ := r.FieldPos(0)
-	if err != nil {
-		return nil, line, inputErr(path, line, "", "%v", err)
-	}
-	return rec, line, nil
 }

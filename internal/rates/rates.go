@@ -126,3 +126,24 @@ func Compare(earlier, later Rate) Change {
 	ci := metrics.NewcombeDiff(later.K, later.N, earlier.K, earlier.N, metrics.Z95)
 	return Change{Diff: later.Rate - earlier.Rate, CI: ci, Clear: ci.Low > 0 || ci.High < 0}
 }
+
+// FactRate is the summary's rate for a fact: 0 of its replies when no finding named the fact.
+func (s Summary) FactRate(id string) Rate {
+	if r, ok := s.PerFact[id]; ok {
+		return r
+	}
+	return NewRate(0, s.Overall.N)
+}
+
+// Facts lists the fact ids of several summaries, in order of first appearance.
+func Facts(sums []Summary) []string {
+	var out []string
+	for _, s := range sums {
+		for _, f := range s.Facts {
+			if !slices.Contains(out, f) {
+				out = append(out, f)
+			}
+		}
+	}
+	return out
+}

@@ -135,25 +135,17 @@ func Build(prof *profile.Profile, paths []string, opts Options) (*Page, error) {
 		p.Files = append(p.Files, fv)
 	}
 	p.Threshold = strings.Join(thresholds, ", ")
-	var facts []string
-	for _, fv := range p.Files {
-		for _, id := range fv.Summary.Facts {
-			if !slices.Contains(facts, id) {
-				facts = append(facts, id)
-			}
-		}
+	sums := make([]rates.Summary, len(p.Files))
+	for i, fv := range p.Files {
+		sums[i] = fv.Summary
 	}
-	for _, id := range facts {
+	for _, id := range rates.Facts(sums) {
 		v := FactView{ID: id}
 		for _, fv := range p.Files {
 			if v.Text == "" {
 				v.Text = fv.Summary.FactText[id]
 			}
-			r, ok := fv.Summary.PerFact[id]
-			if !ok {
-				r = rates.NewRate(0, fv.Summary.Overall.N)
-			}
-			v.Rates = append(v.Rates, r)
+			v.Rates = append(v.Rates, fv.Summary.FactRate(id))
 		}
 		p.Facts = append(p.Facts, v)
 	}
