@@ -20,7 +20,9 @@ func newPairCmd() *cobra.Command {
 	c := &cobra.Command{
 		Use:   "pair PREMISE HYPOTHESIS",
 		Short: "Print the model's three probabilities for one pair (for checking a model by hand)",
-		Args:  cobra.ExactArgs(2),
+		Long: `pair prints the model's probabilities for one premise and hypothesis, read one way, as the model sees
+them (check reads each pair both ways); with --words, each hypothesis word's leave-one-out weight.`,
+		Args: cobra.ExactArgs(2),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			how, err := nli.ParseOcclusion(occlusion)
 			if err != nil {
