@@ -119,29 +119,18 @@ func ReadPairs(path string) ([]Item, error) {
 // readJSONLines calls parse on every non-blank line of a JSON Lines file and keeps the items it
 // returns with keep set; the first error stops the reading.
 func readJSONLines(path string, parse func(raw []byte, line int) (it Item, keep bool, err error)) ([]Item, error) {
-	f, err := os.Open(path)
+	var out []Item
+	err := jsonl.Each(path, func(raw []byte, line int) error {
+		it, keep, err := parse(raw, line)
+		if keep && err == nil {
+			out = append(out, it)
+		}
+		return err
+	})
 	if err != nil {
 		return nil, err
 	}
-	defer f.Close()
-	var out []Item
-	s := jsonl.NewScanner(f)
-	for {
-		raw, line, err := s.Next()
-		if errors.Is(err, io.EOF) {
-			return out, nil
-		}
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w", path, err)
-		}
-		it, keep, err := parse(raw, line)
-		if err != nil {
-			return nil, err
-		}
-		if keep {
-			out = append(out, it)
-		}
-	}
+	return out, nil
 }
 
 func parsePair(path string, line int, raw []byte) (Item, error) {

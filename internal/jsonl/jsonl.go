@@ -43,27 +43,41 @@ func (s *Scanner) Next() ([]byte, int, error) {
 	}
 }
 
-// ReadFile decodes every line of a file into a T.
-func ReadFile[T any](path string) ([]T, error) {
+// Each calls fn on every non-blank line of a file, with its 1-based number, until fn returns an error.
+func Each(path string, fn func(raw []byte, line int) error) error {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, err
+		return err
 	}
 	defer f.Close()
-	var out []T
 	s := NewScanner(f)
 	for {
 		raw, line, err := s.Next()
 		if errors.Is(err, io.EOF) {
-			return out, nil
+			return nil
 		}
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w", path, err)
+			return fmt.Errorf("%s: %w", path, err)
 		}
+		if err := fn(raw, line); err != nil {
+			return err
+		}
+	}
+}
+
+// ReadFile decodes every line of a file into a T.
+func ReadFile[T any](path string) ([]T, error) {
+	var out []T
+	err := Each(path, func(raw []byte, line int) error {
 		var v T
 		if err := json.Unmarshal(raw, &v); err != nil {
-			return nil, fmt.Errorf("%s:%d: %w", path, line, err)
+			return fmt.Errorf("%s:%d: %w", path, line, err)
 		}
 		out = append(out, v)
+		return nil
+	})
+	if err != nil {
+		return nil, err
 	}
+	return out, nil
 }
