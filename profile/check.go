@@ -90,27 +90,31 @@ type pairRef struct {
 }
 
 // Check returns one record per reply, in order. Replies with Err set become error records. If the
-// scorer fails on the batch, each reply is retried alone, so that one bad reply cannot sink the others.
+// scorer fails on the batch, each reply is retried alone, so that one bad reply cannot sink the others;
+// a reply that fails alone becomes an error record with the scorer's reason.
 func (c *Checker) Check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 	start := time.Now()
 	recs, st, err := c.check(p, replies)
-	if err != nil && len(replies) > 1 {
+	if err != nil {
+		// One bad reply must not sink the others: score each alone; one that still fails becomes an
+		// error record (checking a reply that carries an error needs no scorer, so it cannot fail).
+		batchErr := err
 		recs, st = make([]Record, len(replies)), Stats{}
-		for i := range replies {
-			one, s1, err1 := c.check(p, replies[i:i+1])
-			if err1 != nil {
-				r := replies[i]
-				r.Err = err1
+		for i, r := range replies {
+			var one []Record
+			var s1 Stats
+			err := batchErr
+			if len(replies) > 1 {
+				one, s1, err = c.check(p, replies[i:i+1])
+			}
+			if err != nil {
+				r.Err = err
 				one, s1, _ = c.check(p, []Reply{r})
 			}
 			recs[i] = one[0]
 			st.Pairs += s1.Pairs
 			st.Attributed += s1.Attributed
 		}
-		err = nil
-	}
-	if err != nil {
-		return nil, st, err
 	}
 	st.Replies = len(recs)
 	for _, r := range recs {

@@ -124,6 +124,12 @@ func TestScorerFailureIsolatesReply(t *testing.T) {
 	assert.Equal(t, []Verdict{Contradiction, Failed, Consistent}, []Verdict{recs[0].Verdict, recs[1].Verdict, recs[2].Verdict})
 	assert.Contains(t, recs[1].Error, "the model broke")
 	assert.Equal(t, 1, st.Errors)
+
+	// Alone in its batch, the failing reply is still an error record, not a failed run.
+	recs, st, err = c.Check(maren, []Reply{{ID: "b", Text: "boom"}})
+	require.NoError(t, err)
+	assert.Equal(t, Failed, recs[0].Verdict)
+	assert.Equal(t, 1, st.Errors)
 }
 
 func TestRunStreamsEveryReply(t *testing.T) {
