@@ -62,7 +62,8 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 					return unusable(err)
 				}
 			}
-			in, total, err := openReplies(cmd, repliesPath)
+			progress := newProgress(cmd.ErrOrStderr())
+			in, total, err := openReplies(cmd, repliesPath, progress.on)
 			if err != nil {
 				return unusable(err)
 			}
@@ -78,7 +79,7 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			}
 			checker := &profile.Checker{Scorer: nli.Scorer{Model: model, Runner: model, BothWays: !oneWay}, Threshold: threshold, Occlusion: how,
 				Spans: profile.SpanRule{MinWeight: spanMin, Relative: spanRel}, Model: name}
-			progress := newProgress(cmd.ErrOrStderr(), total)
+			progress.total = total
 			st, err := checker.Run(cmd.Context(), prof, profile.NewReplyReader(in, repliesPath, rf, maxChars),
 				profile.NewRecordWriter(out), profile.RunOptions{Chunk: chunk, Progress: progress.update})
 			progress.done()
@@ -109,15 +110,18 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 	return c
 }
 
-// openReplies opens the replies file (or standard input for "-") and counts its non-blank lines for the
-// progress display (-1 when reading standard input).
-func openReplies(cmd *cobra.Command, path string) (io.ReadCloser, int, error) {
+// openReplies opens the replies file (or standard input for "-"). With count, it first counts the
+// file's non-blank lines for the progress display; the total is -1 when not counted.
+func openReplies(cmd *cobra.Command, path string, count bool) (io.ReadCloser, int, error) {
 	if path == "-" {
 		return io.NopCloser(cmd.InOrStdin()), -1, nil
 	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, 0, err
+	}
+	if !count {
+		return f, -1, nil
 	}
 	total := 0
 	sc := bufio.NewReader(f)

@@ -16,9 +16,10 @@ type progress struct {
 	on    bool
 }
 
-func newProgress(w io.Writer, total int) *progress {
+// newProgress draws on w when it is a terminal; set total once known (<= 0: unknown).
+func newProgress(w io.Writer) *progress {
 	f, ok := w.(*os.File)
-	return &progress{w: w, total: total, on: ok && term.IsTerminal(int(f.Fd()))}
+	return &progress{w: w, on: ok && term.IsTerminal(int(f.Fd()))}
 }
 
 func (p *progress) update(done int) {
