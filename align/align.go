@@ -13,20 +13,20 @@ import (
 	"unicode"
 	"unicode/utf8"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/textpos"
-	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/tokenizer"
 )
 
 // Tokens is one record aligned to a generator's tokens.
 type Tokens struct {
 	ID      string          `json:"id"`
-	Verdict profile.Verdict `json:"verdict"`
+	Verdict gainsay.Verdict `json:"verdict"`
 	// SequenceFlag marks a reply judged contradicting as a whole, for sequence-level unlikelihood.
 	SequenceFlag bool           `json:"sequence_flag"`
-	Score        profile.Prob   `json:"score"`
+	Score        gainsay.Prob   `json:"score"`
 	TokenIDs     []int          `json:"token_ids"`
-	Weights      []profile.Prob `json:"weights"`
+	Weights      []gainsay.Prob `json:"weights"`
 	// Offsets are code-point ranges of the reply text, one per token (Python str indexes).
 	Offsets [][2]int `json:"offsets"`
 	Error   string   `json:"error,omitempty"`
@@ -36,14 +36,14 @@ type Tokens struct {
 // normalize, the record's weights are divided by their largest, so that the strongest token weighs 1:
 // a confident model can blame the right word with a small drop in probability, and a training loop
 // may want the localisation rather than the size.
-func Record(rec *profile.Record, tok *nli.Tokenizer, normalize bool) (Tokens, error) {
-	out := Tokens{ID: rec.ID, Verdict: rec.Verdict, SequenceFlag: rec.Verdict == profile.Contradiction,
-		Score: rec.Score, Error: rec.Error, TokenIDs: []int{}, Weights: []profile.Prob{}, Offsets: [][2]int{}}
+func Record(rec *gainsay.Record, tok *tokenizer.Tokenizer, normalize bool) (Tokens, error) {
+	out := Tokens{ID: rec.ID, Verdict: rec.Verdict, SequenceFlag: rec.Verdict == gainsay.Contradiction,
+		Score: rec.Score, Error: rec.Error, TokenIDs: []int{}, Weights: []gainsay.Prob{}, Offsets: [][2]int{}}
 	pieces, err := tok.Tokenize(rec.Text)
 	if err != nil {
 		return out, err
 	}
-	var spans []profile.PenaltySpan
+	var spans []gainsay.Span
 	for _, f := range rec.Findings {
 		spans = append(spans, f.Spans...)
 	}
@@ -54,14 +54,14 @@ func Record(rec *profile.Record, tok *nli.Tokenizer, normalize bool) (Tokens, er
 	idx := textpos.New(rec.Text)
 	for i, p := range pieces {
 		out.TokenIDs = append(out.TokenIDs, p.ID)
-		out.Weights = append(out.Weights, profile.Prob(weights[i]))
+		out.Weights = append(out.Weights, gainsay.Prob(weights[i]))
 		out.Offsets = append(out.Offsets, [2]int{idx.Runes(p.Start), idx.Runes(p.End)})
 	}
 	return out, nil
 }
 
 // Weights applies the package's rule to tokens with byte offsets into text and spans over text.
-func Weights(text string, pieces []nli.Piece, spans []profile.PenaltySpan) []float64 {
+func Weights(text string, pieces []tokenizer.Piece, spans []gainsay.Span) []float64 {
 	out := make([]float64, len(pieces))
 	for i, p := range pieces {
 		start := textpos.TrimLeft(text, p.Start, p.End, isWhiteSpace)

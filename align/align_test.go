@@ -7,16 +7,16 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/jsonl"
-	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/tokenizer"
 )
 
 // Parity with the reference: for each tokenizer family, testdata/<family>.expected.jsonl holds the token
 // ids and offsets that the Hugging Face `tokenizers` package gives for each reply of
 // testdata/records.jsonl, and the weights that scripts/python/gainsay_train computes from them
 // (scripts/reference/align_reference.py). The replies are SNLI test, MultiNLI and Breaking NLI sentences
-// and stress strings (see nli/testdata/parity/SOURCES.md); the tokenizers are nli's small trained ones.
+// and stress strings (see tokenizer/testdata/parity/SOURCES.md); the tokenizers are nli's small trained ones.
 
 type expected struct {
 	ID       string    `json:"id"`
@@ -28,14 +28,14 @@ type expected struct {
 func TestAlignParity(t *testing.T) {
 	f, err := os.Open("testdata/records.jsonl")
 	require.NoError(t, err)
-	recs, err := profile.ReadAllRecords(f, "records.jsonl")
+	recs, err := gainsay.ReadAllRecords(f, "records.jsonl")
 	f.Close()
 	require.NoError(t, err)
 	for _, fam := range []string{"wordpiece", "bpe", "unigram"} {
 		t.Run(fam, func(t *testing.T) {
-			data, err := os.ReadFile("../nli/testdata/tokenizers/" + fam + "/tokenizer.json")
+			data, err := os.ReadFile("../tokenizer/testdata/tokenizers/" + fam + "/tokenizer.json")
 			require.NoError(t, err)
-			tok, err := nli.LoadTokenizer(data)
+			tok, err := tokenizer.Load(data)
 			require.NoError(t, err)
 			want, err := jsonl.ReadFile[expected]("testdata/" + fam + ".expected.jsonl")
 			require.NoError(t, err)
@@ -51,7 +51,7 @@ func TestAlignParity(t *testing.T) {
 				for k := range w.Weights {
 					assert.InDelta(t, w.Weights[k], float64(got.Weights[k]), 1e-6, "%s token %d", w.ID, k)
 				}
-				assert.Equal(t, recs[i].Verdict == profile.Contradiction, got.SequenceFlag)
+				assert.Equal(t, recs[i].Verdict == gainsay.Contradiction, got.SequenceFlag)
 			}
 		})
 	}
@@ -59,9 +59,9 @@ func TestAlignParity(t *testing.T) {
 
 func TestWeightsRule(t *testing.T) {
 	text := "I never, nevermore sail."
-	pieces := []nli.Piece{{ID: 1, Start: 0, End: 1}, {ID: 2, Start: 1, End: 7}, {ID: 3, Start: 7, End: 8},
+	pieces := []tokenizer.Piece{{ID: 1, Start: 0, End: 1}, {ID: 2, Start: 1, End: 7}, {ID: 3, Start: 7, End: 8},
 		{ID: 4, Start: 9, End: 18}, {ID: 5, Start: 18, End: 19}, {ID: 6, Start: 19, End: 23}}
-	spans := []profile.PenaltySpan{{ByteStart: 2, ByteEnd: 7, Weight: 0.8}, {ByteStart: 9, ByteEnd: 14, Weight: 0.6}, {ByteStart: 2, ByteEnd: 4, Weight: 0.9}}
+	spans := []gainsay.Span{{ByteStart: 2, ByteEnd: 7, Weight: 0.8}, {ByteStart: 9, ByteEnd: 14, Weight: 0.6}, {ByteStart: 2, ByteEnd: 4, Weight: 0.9}}
 	got := Weights(text, pieces, spans)
 	want := []float64{
 		0,             // "I"

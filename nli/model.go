@@ -1,6 +1,7 @@
 package nli
 
 import (
+	"cmp"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
@@ -12,18 +13,14 @@ import (
 	"os"
 	"slices"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
 	ort "github.com/yalue/onnxruntime_go"
-)
 
-// Probs are the three NLI probabilities of one pair.
-type Probs struct {
-	Contradiction float64 `json:"contradiction"`
-	Entailment    float64 `json:"entailment"`
-	Neutral       float64 `json:"neutral"`
-}
+	"github.com/gainsay/gainsay/tokenizer"
+)
 
 // Pair is one premise (a profile fact) and hypothesis (a reply sentence).
 type Pair struct {
@@ -45,18 +42,20 @@ type Options struct {
 }
 
 // Model is an NLI cross-encoder loaded from a model folder: model.onnx, tokenizer.json and config.json
-// (whose id2label says which logit is which label). It is safe for concurrent use.
+// (whose id2label says which logit is which label). It is safe for concurrent use, Close included.
 type Model struct {
-	session   *ort.DynamicAdvancedSession
-	tok       *Tokenizer
-	inputs    []string // names of the inputs the model takes, in the order passed to Run
-	labels    [3]int   // logit index of contradiction, entailment, neutral
-	nLogits   int
-	maxLen    int
-	batchSize int
-	sha256    string
-	runNanos  atomic.Int64 // time spent inside ONNX Runtime's Run, for benchmarks
-	runRows   atomic.Int64 // encoded pairs run
+	mu          sync.RWMutex // held for reading by every Run, for writing by Close
+	session     *ort.DynamicAdvancedSession
+	tok         *tokenizer.Tokenizer
+	inputs      []string // names of the inputs the model takes, in the order passed to Run
+	labels      [3]int   // logit index of contradiction, entailment, neutral
+	temperature float64  // logits are divided by it before the softmax
+	nLogits     int
+	maxLen      int
+	batchSize   int
+	sha256      string
+	runNanos    atomic.Int64 // time spent inside ONNX Runtime's Run, for benchmarks
+	runRows     atomic.Int64 // encoded pairs run
 }
 
 // Files a model folder must hold.
@@ -80,6 +79,9 @@ type Config struct {
 	ID2Label              map[string]string `json:"id2label"`
 	MaxPositionEmbeddings int               `json:"max_position_embeddings"`
 	ModelType             string            `json:"model_type"`
+	// Temperature, when set, divides the logits before the softmax: a calibration fitted on held-out
+	// data (scripts/train/calibrate.py) so that probabilities mean what they say.
+	Temperature float64 `json:"temperature"`
 }
 
 // ReadConfig parses config.json and maps its labels to logit indexes.
@@ -100,16 +102,14 @@ func ReadConfig(data []byte) (Config, [3]int, error) {
 		if _, err := fmt.Sscanf(k, "%d", &i); err != nil || i < 0 || i > 2 {
 			return c, idx, fmt.Errorf("%s: id2label key %q is not 0, 1 or 2", FileConfig, k)
 		}
-		switch strings.ToLower(strings.TrimSpace(v)) {
-		case "contradiction":
-			idx[0] = i
-		case "entailment":
-			idx[1] = i
-		case "neutral":
-			idx[2] = i
-		default:
+		l, err := ParseLabel(v)
+		if err != nil {
 			return c, idx, fmt.Errorf("%s: id2label %s is %q; want contradiction, entailment or neutral", FileConfig, k, v)
 		}
+		idx[l] = i
+	}
+	if c.Temperature < 0 {
+		return c, idx, fmt.Errorf("%s: temperature %v must be positive", FileConfig, c.Temperature)
 	}
 	if slices.Contains(idx[:], -1) {
 		return c, idx, fmt.Errorf("%s: id2label must name contradiction, entailment and neutral once each", FileConfig)
@@ -138,7 +138,7 @@ func Open(fsys fs.FS, opts Options) (*Model, error) {
 	if err != nil {
 		return nil, err
 	}
-	tok, err := LoadTokenizer(tokData)
+	tok, err := tokenizer.Load(tokData)
 	if err != nil {
 		return nil, err
 	}
@@ -154,7 +154,7 @@ func Open(fsys fs.FS, opts Options) (*Model, error) {
 	if err := InitRuntime(opts.Library); err != nil {
 		return nil, err
 	}
-	m := &Model{tok: tok, labels: labels, sha256: digest, batchSize: opts.BatchSize}
+	m := &Model{tok: tok, labels: labels, sha256: digest, batchSize: opts.BatchSize, temperature: cmp.Or(cfg.Temperature, 1)}
 	if m.batchSize <= 0 {
 		m.batchSize = 32
 	}
@@ -235,8 +235,10 @@ func (m *Model) openSession(data []byte, threads int) error {
 	return err
 }
 
-// Close releases the ONNX Runtime session.
+// Close releases the ONNX Runtime session once the runs in progress are done; later runs fail.
 func (m *Model) Close() error {
+	m.mu.Lock()
+	defer m.mu.Unlock()
 	if m.session == nil {
 		return nil
 	}
@@ -248,21 +250,14 @@ func (m *Model) Close() error {
 // Inputs are the names of the inputs the model takes.
 func (m *Model) Inputs() []string { return slices.Clone(m.inputs) }
 
-// LabelIndex returns the logit index of "contradiction", "entailment" or "neutral" (-1 otherwise).
-func (m *Model) LabelIndex(label string) int {
-	switch label {
-	case "contradiction":
-		return m.labels[0]
-	case "entailment":
-		return m.labels[1]
-	case "neutral":
-		return m.labels[2]
-	}
-	return -1
-}
+// LabelIndex returns the logit index of a label.
+func (m *Model) LabelIndex(l Label) int { return m.labels[l] }
+
+// Temperature is the calibration temperature of config.json (1 when it has none).
+func (m *Model) Temperature() float64 { return m.temperature }
 
 // Tokenizer is the model's tokenizer.
-func (m *Model) Tokenizer() *Tokenizer { return m.tok }
+func (m *Model) Tokenizer() *tokenizer.Tokenizer { return m.tok }
 
 // MaxLength is the most tokens a pair may have.
 func (m *Model) MaxLength() int { return m.maxLen }
@@ -277,22 +272,30 @@ func (m *Model) Rows() int64 { return m.runRows.Load() }
 // SHA256 is the hex SHA-256 of model.onnx.
 func (m *Model) SHA256() string { return m.sha256 }
 
-// Encode encodes pairs with the model's tokenizer and length limit.
+// Encode encodes pairs with the model's tokenizer and length limit, for a Runner.
 func (m *Model) Encode(pairs []Pair) ([]Encoding, error) {
 	out := make([]Encoding, len(pairs))
 	for i, p := range pairs {
-		e, err := m.tok.EncodePair(p.Premise, p.Hypothesis, m.maxLen)
+		e, err := encodePair(m.tok, p.Premise, p.Hypothesis, m.maxLen)
 		if err != nil {
-			return nil, err
+			return nil, fmt.Errorf("pair %d: %w", i, err)
 		}
 		out[i] = e
 	}
 	return out, nil
 }
 
-// Predict returns the probabilities of each pair, in order.
+// Predict returns the probabilities of each pair, read one way (premise, then hypothesis), in order.
 func (m *Model) Predict(pairs []Pair) ([]Probs, error) {
-	return Scorer{Model: m, Runner: m}.Predict(pairs)
+	scored, err := (&Scorer{Model: m, OneWay: true}).Score(pairs)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Probs, len(scored))
+	for i, s := range scored {
+		out[i] = s.Probs
+	}
+	return out, nil
 }
 
 // PredictEncoded runs encoded pairs through the model, BatchSize at a time. Pairs of similar length are
@@ -325,6 +328,8 @@ func (m *Model) PredictEncoded(encs []Encoding) ([]Probs, error) {
 
 // run is one ONNX Runtime call on a batch, padded to its longest encoding.
 func (m *Model) run(batch []*Encoding) ([]Probs, error) {
+	m.mu.RLock()
+	defer m.mu.RUnlock()
 	if m.session == nil {
 		return nil, errors.New("model is closed")
 	}
@@ -385,19 +390,19 @@ func (m *Model) run(batch []*Encoding) ([]Probs, error) {
 	data := logits.GetData()
 	out := make([]Probs, b)
 	for r := range b {
-		p := softmax3(data[r*3 : r*3+3])
+		p := softmax3(data[r*3:r*3+3], m.temperature)
 		out[r] = Probs{Contradiction: p[m.labels[0]], Entailment: p[m.labels[1]], Neutral: p[m.labels[2]]}
 	}
 	return out, nil
 }
 
-// softmax3 in float64, shifted by the maximum for stability.
-func softmax3(l []float32) [3]float64 {
+// softmax3 of logits divided by a temperature, in float64, shifted by the maximum for stability.
+func softmax3(l []float32, temperature float64) [3]float64 {
 	mx := math.Max(float64(l[0]), math.Max(float64(l[1]), float64(l[2])))
 	var e [3]float64
 	sum := 0.0
 	for i := range 3 {
-		e[i] = math.Exp(float64(l[i]) - mx)
+		e[i] = math.Exp((float64(l[i]) - mx) / temperature)
 		sum += e[i]
 	}
 	for i := range 3 {

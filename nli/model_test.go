@@ -71,12 +71,13 @@ func TestBothWays(t *testing.T) {
 	// token types and counts "never" and "also" wherever they stand, so both readings agree; with
 	// tiny-wordpiece, "also" in the hypothesis adds entailment one way only.
 	m := openTiny(t, "tiny-wordpiece")
-	both := Scorer{Model: m, Runner: m, BothWays: true}
-	got, err := both.Predict([]Pair{{"I live on the coast.", "I have never seen the sea."}, {"I swim.", "I also never sail."}})
+	both := &Scorer{Model: m}
+	scored, err := both.Score([]Pair{{"I live on the coast.", "I have never seen the sea."}, {"I swim.", "I also never sail."}})
 	require.NoError(t, err)
+	got := []Probs{scored[0].Probs, scored[1].Probs}
 	assertProbs(t, probsOf(4, 0, 1), got[0], "never counts in both readings")
 	assertProbs(t, probsOf(4, 2, 1), got[1], "the reading with also in the hypothesis contradicts less")
-	attr, err := both.Attribute([]Pair{{"I live on the coast.", "I have never seen the sea."}}, Delete)
+	attr, err := both.Attribute(scored[:1], Delete)
 	require.NoError(t, err)
 	for _, w := range attr[0].Words {
 		want := 0.0
@@ -108,7 +109,7 @@ func TestAttributionFindsCulprit(t *testing.T) {
 	for _, how := range []Occlusion{Delete, Mask} {
 		t.Run(string(how), func(t *testing.T) {
 			m := openTiny(t, "tiny-wordpiece")
-			got, err := m.Attribute([]Pair{pair}, how)
+			got, err := attribute(m, []Pair{pair}, how)
 			require.NoError(t, err)
 			a := got[0]
 			assert.InDelta(t, full, a.Contradiction, 1e-6)
@@ -130,7 +131,7 @@ func TestAttributionTwoCulprits(t *testing.T) {
 	// "not" (+2) and "never" (+4): removing "never" costs more than removing "not".
 	m := openTiny(t, "tiny-bpe")
 	pair := Pair{"Boats.", "I do not and never will."}
-	got, err := m.Attribute([]Pair{pair}, Delete)
+	got, err := attribute(m, []Pair{pair}, Delete)
 	require.NoError(t, err)
 	weights := map[string]float64{}
 	for _, w := range got[0].Words {
@@ -197,11 +198,22 @@ func TestScoreKept(t *testing.T) {
 	all := []bool{true, true, true, true, true, true, true}
 	noNever := []bool{true, true, true, true, false, true, true}
 	onlyNot := []bool{false, false, true, false, false, false, false}
-	got, err := m.ScoreKept(pair, [][]bool{all, noNever, onlyNot})
+	oneWay := &Scorer{Model: m, OneWay: true}
+	got, err := oneWay.ScoreKept(pair, [][]bool{all, noNever, onlyNot})
 	require.NoError(t, err)
 	assertProbs(t, probsOf(6, 0, 1), got[0], "all words")
 	assertProbs(t, probsOf(2, 0, 1), got[1], "without never")
 	assertProbs(t, probsOf(2, 0, 1), got[2], "only not")
-	_, err = m.ScoreKept(pair, [][]bool{{true}})
+	_, err = oneWay.ScoreKept(pair, [][]bool{{true}})
 	assert.ErrorContains(t, err, "1 entries for 7 words")
+}
+
+// attribute scores pairs one way and attributes them.
+func attribute(m *Model, pairs []Pair, how Occlusion) ([]Attribution, error) {
+	s := &Scorer{Model: m, OneWay: true}
+	scored, err := s.Score(pairs)
+	if err != nil {
+		return nil, err
+	}
+	return s.Attribute(scored, how)
 }

@@ -1,5 +1,4 @@
-// Package profile owns gainsay's inputs and outputs: character profiles (facts), reply batches, their
-// validation with file:line:field errors, sentence splitting, the check pipeline that scores every
-// (fact, reply sentence) pair and turns contradictions into token-level penalty spans, and the record
-// schema with its JSON Lines reader and writer. It knows nothing of the command line or HTTP.
+// Package profile reads character profiles: the character and the facts its replies must not
+// contradict, from YAML, JSON or plain text, with errors that name the file, line and field. It knows
+// nothing of models, replies or the command line.
 package profile

@@ -1,28 +1,12 @@
 package profile
 
-import "fmt"
+import "github.com/gainsay/gainsay/internal/inputerr"
 
 // InputError is bad input: the file, the 1-based line (0 when unknown), the field and what is wrong.
-type InputError struct {
-	File  string
-	Line  int
-	Field string
-	Msg   string
-}
-
-func (e *InputError) Error() string {
-	loc := e.File
-	if e.Line > 0 {
-		loc = fmt.Sprintf("%s:%d", e.File, e.Line)
-	}
-	if e.Field != "" {
-		return fmt.Sprintf("%s: %s: %s", loc, e.Field, e.Msg)
-	}
-	return fmt.Sprintf("%s: %s", loc, e.Msg)
-}
+type InputError = inputerr.Error
 
 func inputErr(file string, line int, field, format string, args ...any) *InputError {
-	return &InputError{File: file, Line: line, Field: field, Msg: fmt.Sprintf(format, args...)}
+	return inputerr.New(file, line, field, format, args...)
 }
 
 // lineOf returns the 1-based line of byte offset off in data.

@@ -12,6 +12,8 @@ import (
 	"unicode/utf8"
 
 	"gopkg.in/yaml.v3"
+
+	"github.com/gainsay/gainsay/internal/textpos"
 )
 
 // Profile is a character and the facts its replies must not contradict.
@@ -36,11 +38,10 @@ type Fact struct {
 type Format string
 
 const (
-	FormatAuto  Format = ""
-	FormatYAML  Format = "yaml"
-	FormatJSON  Format = "json"
-	FormatJSONL Format = "jsonl"
-	FormatText  Format = "text"
+	FormatAuto Format = ""
+	FormatYAML Format = "yaml"
+	FormatJSON Format = "json"
+	FormatText Format = "text"
 )
 
 // ReadProfile reads a profile file: YAML (.yaml, .yml), JSON (.json) or plain text (.txt: one fact a
@@ -69,7 +70,7 @@ func ReadProfile(path string, format Format) (*Profile, error) {
 func ParseProfile(name string, data []byte, format Format) (*Profile, error) {
 	data = trimBOM(data)
 	if !utf8.Valid(data) {
-		return nil, inputErr(name, lineOf(data, firstInvalidUTF8(data)), "", "invalid UTF-8")
+		return nil, inputErr(name, lineOf(data, textpos.FirstInvalidUTF8(data)), "", "invalid UTF-8")
 	}
 	var p *Profile
 	var err error
@@ -97,17 +98,6 @@ func ParseProfile(name string, data []byte, format Format) (*Profile, error) {
 	}
 	p.File = name
 	return p, p.validate()
-}
-
-func firstInvalidUTF8(data []byte) int {
-	for i := 0; i < len(data); {
-		r, n := utf8.DecodeRune(data[i:])
-		if r == utf8.RuneError && n <= 1 {
-			return i
-		}
-		i += n
-	}
-	return len(data)
 }
 
 func parseTextProfile(name string, data []byte) (*Profile, error) {

@@ -10,9 +10,9 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/align"
-	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/tokenizer"
 )
 
 func newAlignCmd() *cobra.Command {
@@ -38,7 +38,7 @@ Supported tokenizers: WordPiece, byte-level BPE (GPT-2, RoBERTa, ...) and Unigra
 			if err != nil {
 				return unusable(err)
 			}
-			tok, err := nli.LoadTokenizer(data)
+			tok, err := tokenizer.Load(data)
 			if err != nil {
 				return unusable(fmt.Errorf("%s: %w", tokPath, err))
 			}
@@ -52,7 +52,7 @@ Supported tokenizers: WordPiece, byte-level BPE (GPT-2, RoBERTa, ...) and Unigra
 				return unusable(err)
 			}
 			w := bufio.NewWriter(out)
-			rr := profile.NewRecordReader(in, spansPath)
+			rr := gainsay.NewRecordReader(in, spansPath)
 			n := 0
 			for {
 				rec, err := rr.Next()

@@ -9,6 +9,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -56,9 +57,9 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			if err != nil {
 				return unusable(err)
 			}
-			rf := profile.Format(repliesFormat)
-			if rf == profile.FormatAuto {
-				if rf, err = profile.ReplyFormat(repliesPath); err != nil {
+			rf := gainsay.Format(repliesFormat)
+			if rf == gainsay.FormatAuto {
+				if rf, err = gainsay.ReplyFormat(repliesPath); err != nil {
 					return unusable(err)
 				}
 			}
@@ -77,11 +78,11 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			if err != nil {
 				return unusable(err)
 			}
-			checker := &profile.Checker{Scorer: nli.Scorer{Model: model, Runner: model, BothWays: !oneWay}, Threshold: threshold, Occlusion: how,
-				Spans: profile.SpanRule{MinWeight: spanMin, Relative: spanRel}, Model: name}
+			checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: model, OneWay: oneWay}, Options: gainsay.Options{
+				Threshold: threshold, Occlusion: how, Spans: gainsay.SpanRule{MinWeight: spanMin, Relative: spanRel}, Model: name}}
 			progress.total = total
-			st, err := checker.Run(cmd.Context(), prof, profile.NewReplyReader(in, repliesPath, rf, maxChars),
-				profile.NewRecordWriter(out), profile.RunOptions{Chunk: chunk, Progress: progress.update})
+			st, err := checker.Run(cmd.Context(), prof, gainsay.NewReplyReader(in, repliesPath, rf, maxChars),
+				gainsay.NewRecordWriter(out), gainsay.RunOptions{Chunk: chunk, Progress: progress.update})
 			progress.done()
 			if cerr := closeOut(); err == nil {
 				err = cerr
@@ -100,11 +101,11 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 	f.StringVar(&profileFormat, "profile-format", "", "profile format when the extension does not say: yaml, json or text")
 	f.StringVar(&repliesFormat, "replies-format", "", "replies format when the extension does not say: jsonl or text")
 	f.StringVarP(&outPath, "out", "o", "", "output file (default: standard output)")
-	f.Float64Var(&threshold, "threshold", profile.DefaultThreshold, "contradiction probability at which a pair is flagged")
+	f.Float64Var(&threshold, "threshold", gainsay.DefaultThreshold, "contradiction probability at which a pair is flagged")
 	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	f.Float64Var(&spanMin, "span-min-weight", profile.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
-	f.Float64Var(&spanRel, "span-relative", profile.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
-	f.IntVar(&maxChars, "max-reply-chars", profile.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
+	f.Float64Var(&spanMin, "span-min-weight", gainsay.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
+	f.Float64Var(&spanRel, "span-relative", gainsay.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
+	f.IntVar(&maxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
 	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory)")
 	f.BoolVar(&oneWay, "one-way", false, "read each pair only as fact then sentence (half the work; no check that the contradiction holds both ways)")
 	return c
@@ -153,7 +154,7 @@ func createOutput(cmd *cobra.Command, path string) (io.Writer, func() error, err
 	return f, f.Close, nil
 }
 
-func summary(st profile.Stats) string {
+func summary(st gainsay.Stats) string {
 	rate := 0.0
 	if s := st.Elapsed.Seconds(); s > 0 {
 		rate = float64(st.Pairs) / s

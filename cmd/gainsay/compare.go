@@ -11,6 +11,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/rates"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -58,7 +59,7 @@ func summarize(paths []string, known []profile.Fact) ([]rates.Summary, error) {
 		if err != nil {
 			return nil, unusable(err)
 		}
-		recs, err := profile.ReadAllRecords(f, p)
+		recs, err := gainsay.ReadAllRecords(f, p)
 		f.Close()
 		if err != nil {
 			return nil, unusable(err)

@@ -5,7 +5,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/gainsay/gainsay/internal/eval"
+	"github.com/gainsay/gainsay"
+	"github.com/gainsay/gainsay/eval"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -93,14 +94,14 @@ Formats (--format, guessed from the path when left out):
 				if err != nil {
 					return unusable(err)
 				}
-				checker := &profile.Checker{Scorer: nli.Scorer{Model: model, Runner: model, BothWays: !oneWay},
-					Threshold: threshold, Occlusion: how, Model: name}
+				checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: model, OneWay: oneWay},
+					Options: gainsay.Options{Threshold: threshold, Occlusion: how, Model: name}}
 				rep, err = eval.Replies(checker, prof, labelled, target)
 				if err != nil {
 					return err
 				}
 			} else {
-				rep, err = eval.Pairs(model, items, eval.Options{TargetPrecision: target, Rationales: rationales, Occlusion: how})
+				rep, err = eval.Pairs(&nli.Scorer{Model: model, OneWay: true}, items, eval.Options{TargetPrecision: target, Rationales: rationales, Occlusion: how})
 				if err != nil {
 					return err
 				}
@@ -129,7 +130,7 @@ Formats (--format, guessed from the path when left out):
 	fl.StringVar(&profilePath, "profile", "", "profile for the replies format")
 	fl.StringVar(&jsonPath, "json", "", "also write the full results as JSON to this file")
 	fl.Float64Var(&target, "target-precision", 0, "report the contradiction threshold that reaches this precision")
-	fl.Float64Var(&threshold, "threshold", profile.DefaultThreshold, "replies format: contradiction threshold of the check")
+	fl.Float64Var(&threshold, "threshold", gainsay.DefaultThreshold, "replies format: contradiction threshold of the check")
 	fl.BoolVar(&rationales, "rationales", true, "evaluate attribution where the data has gold words")
 	fl.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
 	fl.IntVar(&limit, "limit", 0, "use at most this many items (after --every)")

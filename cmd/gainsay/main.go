@@ -8,9 +8,8 @@ import (
 	"io"
 	"os"
 
+	"github.com/gainsay/gainsay"
 	"github.com/spf13/cobra"
-
-	"github.com/gainsay/gainsay/profile"
 )
 
 // Exit statuses: 0 the run completed (even with error records), 1 it failed on the way, 2 the
@@ -52,7 +51,7 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stderr, "gainsay: %v\n", err)
 	var ue usageError
-	var ie *profile.InputError
+	var ie *gainsay.InputError
 	if !started || errors.As(err, &ue) || errors.As(err, &ie) {
 		return exitUnusable
 	}

@@ -36,7 +36,7 @@ folder is incomplete or unusable.`,
 			out := cmd.OutOrStdout()
 			fmt.Fprintf(out, "model       %s\n", name)
 			fmt.Fprintf(out, "sha256      %s\n", m.SHA256())
-			fmt.Fprintf(out, "labels      contradiction=%d entailment=%d neutral=%d\n", m.LabelIndex("contradiction"), m.LabelIndex("entailment"), m.LabelIndex("neutral"))
+			fmt.Fprintf(out, "labels      contradiction=%d entailment=%d neutral=%d\n", m.LabelIndex(nli.Contradiction), m.LabelIndex(nli.Entailment), m.LabelIndex(nli.Neutral))
 			fmt.Fprintf(out, "inputs      %s\n", strings.Join(m.Inputs(), ", "))
 			fmt.Fprintf(out, "tokenizer   %s\n", m.Tokenizer().Family())
 			fmt.Fprintf(out, "max length  %d tokens\n", m.MaxLength())

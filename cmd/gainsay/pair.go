@@ -6,8 +6,8 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
 )
 
 func newPairCmd() *cobra.Command {
@@ -34,14 +34,15 @@ them (check reads each pair both ways); with --words, each hypothesis word's lea
 			}
 			defer model.Close()
 			pair := nli.Pair{Premise: args[0], Hypothesis: args[1]}
-			probs, err := model.Predict([]nli.Pair{pair})
+			oneWay := &nli.Scorer{Model: model, OneWay: true}
+			scored, err := oneWay.Score([]nli.Pair{pair})
 			if err != nil {
 				return err
 			}
-			p := probs[0]
+			p := scored[0].Probs
 			var attr []nli.WordWeight
 			if words {
-				a, err := model.Attribute([]nli.Pair{pair}, how)
+				a, err := oneWay.Attribute(scored, how)
 				if err != nil {
 					return err
 				}
@@ -51,14 +52,14 @@ them (check reads each pair both ways); with --words, each hypothesis word's lea
 			if asJSON {
 				type word struct {
 					Text   string       `json:"text"`
-					Weight profile.Prob `json:"weight"`
+					Weight gainsay.Prob `json:"weight"`
 				}
 				v := struct {
-					Probs profile.Probs `json:"probs"`
+					Probs gainsay.Probs `json:"probs"`
 					Words []word        `json:"words,omitempty"`
-				}{Probs: profile.Probs{Contradiction: profile.Prob(p.Contradiction), Entailment: profile.Prob(p.Entailment), Neutral: profile.Prob(p.Neutral)}}
+				}{Probs: gainsay.ProbsOf(p)}
 				for _, w := range attr {
-					v.Words = append(v.Words, word{args[1][w.Start:w.End], profile.Prob(w.Weight)})
+					v.Words = append(v.Words, word{args[1][w.Start:w.End], gainsay.Prob(w.Weight)})
 				}
 				b, _ := json.Marshal(v)
 				fmt.Fprintln(out, string(b))

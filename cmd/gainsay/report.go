@@ -5,8 +5,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/gainsay/gainsay/internal/report"
 	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/report"
 )
 
 func newReportCmd() *cobra.Command {

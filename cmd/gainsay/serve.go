@@ -12,9 +12,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/gainsay/gainsay/internal/serve"
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/serve"
 )
 
 func newServeCmd() *cobra.Command {
@@ -88,11 +88,11 @@ flight (for up to --grace) and exits.`,
 	f.Int64Var(&cfg.MaxBodyBytes, "max-body-bytes", 4<<20, "request body limit")
 	f.IntVar(&cfg.MaxReplies, "max-replies", 1024, "replies per request")
 	f.IntVar(&cfg.MaxFacts, "max-facts", 256, "facts per profile")
-	f.IntVar(&cfg.MaxChars, "max-reply-chars", profile.DefaultMaxReplyChars, "characters per reply; longer ones become error records")
-	f.Float64Var(&cfg.Threshold, "threshold", profile.DefaultThreshold, "default contradiction threshold (a request may set its own)")
+	f.IntVar(&cfg.MaxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "characters per reply; longer ones become error records")
+	f.Float64Var(&cfg.Threshold, "threshold", gainsay.DefaultThreshold, "default contradiction threshold (a request may set its own)")
 	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	f.Float64Var(&cfg.Spans.MinWeight, "span-min-weight", profile.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
-	f.Float64Var(&cfg.Spans.Relative, "span-relative", profile.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
+	f.Float64Var(&cfg.Spans.MinWeight, "span-min-weight", gainsay.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
+	f.Float64Var(&cfg.Spans.Relative, "span-relative", gainsay.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
 	f.DurationVar(&grace, "grace", 30*time.Second, "how long shutdown waits for requests in flight")
 	f.BoolVar(&cfg.OneWay, "one-way", false, "read each pair only as fact then sentence (see gainsay help check)")
 	return c

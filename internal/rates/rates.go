@@ -6,6 +6,7 @@ package rates
 import (
 	"slices"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/metrics"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -60,7 +61,7 @@ func NewCounter(name string, known []profile.Fact) *Counter {
 }
 
 // Add counts one record. A reply counts for a fact when at least one of its findings names the fact.
-func (c *Counter) Add(r *profile.Record) {
+func (c *Counter) Add(r *gainsay.Record) {
 	s := &c.s
 	s.Records++
 	if r.Model != "" && !slices.Contains(s.Models, r.Model) {
@@ -69,12 +70,12 @@ func (c *Counter) Add(r *profile.Record) {
 	if t := float64(r.Threshold); !slices.Contains(s.Thresholds, t) {
 		s.Thresholds = append(s.Thresholds, t)
 	}
-	if r.Verdict == profile.Failed {
+	if r.Verdict == gainsay.Failed {
 		s.Errors++
 		return
 	}
 	c.n++
-	if r.Verdict == profile.Contradiction {
+	if r.Verdict == gainsay.Contradiction {
 		c.k++
 	}
 	seen := map[string]bool{}
@@ -105,7 +106,7 @@ func (c *Counter) Summary() Summary {
 }
 
 // Summarize counts a set of records held in memory.
-func Summarize(name string, recs []profile.Record, known []profile.Fact) Summary {
+func Summarize(name string, recs []gainsay.Record, known []profile.Fact) Summary {
 	c := NewCounter(name, known)
 	for i := range recs {
 		c.Add(&recs[i])

@@ -5,22 +5,23 @@ import (
 
 	"github.com/stretchr/testify/assert"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/profile"
 )
 
 func TestSummarize(t *testing.T) {
-	f := func(ids ...string) []profile.Finding {
-		var out []profile.Finding
+	f := func(ids ...string) []gainsay.Finding {
+		var out []gainsay.Finding
 		for _, id := range ids {
-			out = append(out, profile.Finding{FactID: id, Fact: "fact " + id})
+			out = append(out, gainsay.Finding{FactID: id, Fact: "fact " + id})
 		}
 		return out
 	}
-	recs := []profile.Record{
-		{Verdict: profile.Contradiction, Findings: f("a", "a", "b"), Model: "m1", Threshold: 0.5},
-		{Verdict: profile.Contradiction, Findings: f("b"), Model: "m1", Threshold: 0.5},
-		{Verdict: profile.Consistent, Threshold: 0.5},
-		{Verdict: profile.Failed, Threshold: 0.5},
+	recs := []gainsay.Record{
+		{Verdict: gainsay.Contradiction, Findings: f("a", "a", "b"), Model: "m1", Threshold: 0.5},
+		{Verdict: gainsay.Contradiction, Findings: f("b"), Model: "m1", Threshold: 0.5},
+		{Verdict: gainsay.Consistent, Threshold: 0.5},
+		{Verdict: gainsay.Failed, Threshold: 0.5},
 	}
 	s := Summarize("x", recs, []profile.Fact{{ID: "c", Text: "never broken"}, {ID: "a", Text: "fact a"}})
 	assert.Equal(t, 4, s.Records)

@@ -77,3 +77,20 @@ func TrimRight(s string, start, end int, f func(rune) bool) int {
 	}
 	return end
 }
+
+// Range is a byte range [Start, End) of a text.
+type Range struct {
+	Start, End int
+}
+
+// FirstInvalidUTF8 is the byte offset of the first invalid UTF-8 sequence in data (len(data) if none).
+func FirstInvalidUTF8(data []byte) int {
+	for i := 0; i < len(data); {
+		r, n := utf8.DecodeRune(data[i:])
+		if r == utf8.RuneError && n <= 1 {
+			return i
+		}
+		i += n
+	}
+	return len(data)
+}

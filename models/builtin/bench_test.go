@@ -8,6 +8,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -38,14 +39,14 @@ func BenchmarkCheck(b *testing.B) {
 	for i := 0; i < 400; i++ {
 		fmt.Fprintf(&in, "{\"id\": \"r%d\", \"text\": %q}\n", i, texts[i%len(texts)])
 	}
-	c := &profile.Checker{Scorer: nli.Scorer{Model: m, Runner: m, BothWays: true}, Model: "builtin"}
+	c := &gainsay.Checker{Scorer: &nli.Scorer{Model: m}, Options: gainsay.Options{Model: "builtin"}}
 	var wall, run time.Duration
 	pairs, rows := 0, int64(0)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		before, rowsBefore, start := m.RunTime(), m.Rows(), time.Now()
-		st, err := c.Run(context.Background(), prof, profile.NewReplyReader(bytes.NewReader(in.Bytes()), "bench", profile.FormatJSONL, 0),
-			profile.NewRecordWriter(io.Discard), profile.RunOptions{})
+		st, err := c.Run(context.Background(), prof, gainsay.NewReplyReader(bytes.NewReader(in.Bytes()), "bench", gainsay.FormatJSONL, 0),
+			gainsay.NewRecordWriter(io.Discard), gainsay.RunOptions{})
 		if err != nil {
 			b.Fatal(err)
 		}

@@ -13,6 +13,7 @@ import (
 
 	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/tokenizer"
 )
 
 func readLines[T any](t *testing.T, path string) []T {
@@ -34,7 +35,7 @@ func TestChecksumMatchesCard(t *testing.T) {
 
 // Logit parity with the reference: the onnxruntime Python package (1.32) on the same models and pairs,
 // encoded by Hugging Face tokenizers, one pair per run (scripts/reference/ort_reference.py). The pairs
-// are nli/testdata/parity/pairs.jsonl: SNLI test, MultiNLI and Breaking NLI sentences and stress
+// are tokenizer/testdata/parity/pairs.jsonl: SNLI test, MultiNLI and Breaking NLI sentences and stress
 // strings (see its SOURCES.md). Go batches and pads; the probabilities must agree within 1e-4.
 func TestLogitParity(t *testing.T) {
 	type ref struct {
@@ -76,9 +77,9 @@ func TestTokenizerCarriesFixedPaddingWhichIsIgnored(t *testing.T) {
 	raw, err := fs.ReadFile(FS(), "tokenizer.json")
 	require.NoError(t, err)
 	assert.True(t, strings.Contains(string(raw), `"Fixed":128`) || strings.Contains(string(raw), `"Fixed": 128`))
-	tok, err := nli.LoadTokenizer(raw)
+	tok, err := tokenizer.Load(raw)
 	require.NoError(t, err)
-	e, err := tok.EncodePair("I live on the coast.", "I have never seen the sea.", 0)
+	e, err := tok.EncodePair("I live on the coast.", "I have never seen the sea.")
 	require.NoError(t, err)
 	assert.Less(t, e.Len(), 30, "no padding to 128")
 }

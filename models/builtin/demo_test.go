@@ -10,6 +10,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -30,8 +31,8 @@ func TestDemo(t *testing.T) {
 	f, err := os.Open("../../testdata/demo/replies.jsonl")
 	require.NoError(t, err)
 	defer f.Close()
-	rr := profile.NewReplyReader(f, "replies.jsonl", profile.FormatJSONL, 0)
-	var replies []profile.Reply
+	rr := gainsay.NewReplyReader(f, "replies.jsonl", gainsay.FormatJSONL, 0)
+	var replies []gainsay.Reply
 	for {
 		r, err := rr.Next()
 		if err != nil {
@@ -43,15 +44,14 @@ func TestDemo(t *testing.T) {
 	require.NoError(t, err)
 	defer m.Close()
 	// As gainsay check runs it: both ways, default threshold and span rule.
-	recs, _, err := (&profile.Checker{Scorer: nli.Scorer{Model: m, Runner: m, BothWays: true}}).Check(prof, replies)
-	require.NoError(t, err)
-	byID := map[string]profile.Record{}
+	recs, _ := (&gainsay.Checker{Scorer: &nli.Scorer{Model: m}}).Check(prof, replies)
+	byID := map[string]gainsay.Record{}
 	for _, r := range recs {
 		byID[r.ID] = r
 	}
 	for id, w := range want.Contradictions {
 		r := byID[id]
-		if !assert.Equal(t, profile.Contradiction, r.Verdict, "%s: %q", id, r.Text) {
+		if !assert.Equal(t, gainsay.Contradiction, r.Verdict, "%s: %q", id, r.Text) {
 			continue
 		}
 		var spans []string
@@ -72,6 +72,6 @@ func TestDemo(t *testing.T) {
 		}
 	}
 	for _, id := range want.Consistent {
-		assert.Equal(t, profile.Consistent, byID[id].Verdict, "%s: %q flagged", id, byID[id].Text)
+		assert.Equal(t, gainsay.Consistent, byID[id].Verdict, "%s: %q flagged", id, byID[id].Text)
 	}
 }

@@ -8,7 +8,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"github.com/gainsay/gainsay/internal/eval"
+	"github.com/gainsay/gainsay/eval"
 	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/nli"
 )
@@ -44,7 +44,7 @@ func TestHeldOutSample(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			w := want[name]
 			require.Equal(t, w.Pairs, len(items))
-			rep, err := eval.Pairs(m, items, eval.Options{})
+			rep, err := eval.Pairs(&nli.Scorer{Model: m, OneWay: true}, items, eval.Options{})
 			require.NoError(t, err)
 			assert.InDelta(t, w.Accuracy, rep.Classification.Accuracy, 0.005, "accuracy")
 			for _, c := range rep.Classification.PerClass {

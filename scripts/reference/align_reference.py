@@ -1,7 +1,7 @@
 """Reference per-token weights for align's parity tests, from the Hugging Face `tokenizers` package's
 offsets and the gainsay_train package's weight rule.
 
-Replies: every hypothesis of nli/testdata/parity/pairs.jsonl (SNLI test, MultiNLI, Breaking NLI and the
+Replies: every hypothesis of tokenizer/testdata/parity/pairs.jsonl (SNLI test, MultiNLI, Breaking NLI and the
 stress strings; see its SOURCES.md) and the stress premises. Spans are placed by a fixed rule so that
 they cover whole words, parts of words and punctuation: word i of a reply (split on spaces) is a span
 when i % 3 == 1 (weight 0.3 + 0.1 * (i % 5)), and the first three characters of a word of 6 or more
@@ -32,7 +32,7 @@ FAMILIES = ("wordpiece", "bpe", "unigram")
 
 def texts() -> list[tuple[str, str]]:
     out = []
-    with open(os.path.join(ROOT, "nli", "testdata", "parity", "pairs.jsonl"), encoding="utf-8") as f:
+    with open(os.path.join(ROOT, "tokenizer", "testdata", "parity", "pairs.jsonl"), encoding="utf-8") as f:
         for line in f:
             p = json.loads(line)
             out.append((p["source"], p["hypothesis"]))
@@ -87,7 +87,7 @@ def main() -> int:
     recs = records()
     files = {"records.jsonl": "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in recs)}
     for fam in FAMILIES:
-        tk = Tokenizer.from_file(os.path.join(ROOT, "nli", "testdata", "tokenizers", fam, "tokenizer.json"))
+        tk = Tokenizer.from_file(os.path.join(ROOT, "tokenizer", "testdata", "tokenizers", fam, "tokenizer.json"))
         tk.no_padding()
         tk.no_truncation()
         lines = []

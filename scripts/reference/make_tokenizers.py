@@ -12,7 +12,7 @@ for the public models:
 * unigram/    DeBERTa-v3 layout (DebertaV2TokenizerFast converted from a SentencePiece unigram model):
               Precompiled normaliser, Metaspace, [CLS] A [SEP] B [SEP].
 
-It also writes nli/testdata/parity/pairs.jsonl: premise/hypothesis pairs from SNLI test, MultiNLI (every
+It also writes tokenizer/testdata/parity/pairs.jsonl: premise/hypothesis pairs from SNLI test, MultiNLI (every
 row with non-ASCII text first) and Breaking NLI, plus a few strings chosen to stress normalisation.
 
 Needs: tokenizers, transformers, sentencepiece, protobuf (scripts/train/requirements.txt). Run once:
@@ -31,8 +31,8 @@ sys.path.insert(0, os.path.join(ROOT, "scripts", "train"))
 
 import nli_data  # noqa: E402
 
-OUT = os.path.join(ROOT, "nli", "testdata", "tokenizers")
-PARITY = os.path.join(ROOT, "nli", "testdata", "parity", "pairs.jsonl")
+OUT = os.path.join(ROOT, "tokenizer", "testdata", "tokenizers")
+PARITY = os.path.join(ROOT, "tokenizer", "testdata", "parity", "pairs.jsonl")
 VOCAB = 3000
 
 # Strings that exercise what open NLI text rarely has: accents that BERT-uncased strips, characters that

@@ -1,7 +1,7 @@
 """Reference probabilities from the onnxruntime Python package, for the logit parity test of the Go path.
 
 For the built-in model (models/builtin) and nli's tiny test models, every pair of
-nli/testdata/parity/pairs.jsonl (SNLI test, MultiNLI, Breaking NLI and stress strings; see its
+tokenizer/testdata/parity/pairs.jsonl (SNLI test, MultiNLI, Breaking NLI and stress strings; see its
 SOURCES.md) is encoded with the Hugging Face `tokenizers` package (padding and truncation off) and run
 one pair at a time, so no padding is involved; softmax in float64 over the logits, mapped to labels
 through config.json's id2label. The results go where MODELS says, beside each model's other test data.
@@ -22,7 +22,7 @@ from tokenizers import Tokenizer
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.normpath(os.path.join(HERE, "..", ".."))
-PAIRS = os.path.join(ROOT, "nli", "testdata", "parity", "pairs.jsonl")
+PAIRS = os.path.join(ROOT, "tokenizer", "testdata", "parity", "pairs.jsonl")
 MODELS = {
     "builtin": (os.path.join(ROOT, "models", "builtin"), os.path.join(ROOT, "models", "builtin", "testdata", "ort-reference.jsonl")),
     "tiny-wordpiece": (os.path.join(ROOT, "nli", "testdata", "tiny-wordpiece"), os.path.join(ROOT, "nli", "testdata", "tiny-wordpiece.ort-reference.jsonl")),

@@ -1,11 +1,11 @@
 """Reference encodings from the Hugging Face `tokenizers` package, for nli's tokenizer parity tests.
 
-For every pair in nli/testdata/parity/pairs.jsonl and every tokenizer under nli/testdata/tokenizers/ (plus
+For every pair in tokenizer/testdata/parity/pairs.jsonl and every tokenizer under tokenizer/testdata/tokenizers/ (plus
 the built-in model's), encode (premise, hypothesis) exactly as a cross-encoder does — padding and
 truncation switched off — and write one JSON object per pair: ids, type_ids, offsets (code points into
 the premise or hypothesis, as Python str indexes) and sequence_ids (0 premise, 1 hypothesis, -1 special).
 
-    python scripts/reference/tokenizer_reference.py          # (re)write nli/testdata/parity/*.expected.jsonl
+    python scripts/reference/tokenizer_reference.py          # (re)write tokenizer/testdata/parity/*.expected.jsonl
     python scripts/reference/tokenizer_reference.py --check  # fail if the committed files differ
 """
 from __future__ import annotations
@@ -19,11 +19,11 @@ from tokenizers import Tokenizer
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.normpath(os.path.join(HERE, "..", ".."))
-PARITY = os.path.join(ROOT, "nli", "testdata", "parity")
+PARITY = os.path.join(ROOT, "tokenizer", "testdata", "parity")
 
 
 def tokenizer_files() -> dict[str, str]:
-    base = os.path.join(ROOT, "nli", "testdata", "tokenizers")
+    base = os.path.join(ROOT, "tokenizer", "testdata", "tokenizers")
     out = {name: os.path.join(base, name, "tokenizer.json") for name in sorted(os.listdir(base))}
     builtin = os.path.join(ROOT, "models", "builtin", "tokenizer.json")
     if os.path.exists(builtin):

@@ -1,7 +1,7 @@
 """The Go `gainsay align` and gainsay_train give the same weights on the same files.
 
 Replies: align/testdata/records.jsonl (SNLI test, MultiNLI, Breaking NLI sentences and stress strings;
-see nli/testdata/parity/SOURCES.md). Tokenizers: one of each family, trained by
+see tokenizer/testdata/parity/SOURCES.md). Tokenizers: one of each family, trained by
 scripts/reference/make_tokenizers.py. Token ids and offsets come from Hugging Face `tokenizers`, the
 reference; the Go side tokenises with its own code."""
 import json
@@ -20,7 +20,7 @@ FAMILIES = ["wordpiece", "bpe", "unigram"]
 @pytest.mark.parametrize("normalize", [False, True])
 @pytest.mark.parametrize("family", FAMILIES)
 def test_go_align_matches_python(tmp_path, root, gainsay_bin, family, normalize):
-    tok_path = os.path.join(root, "nli", "testdata", "tokenizers", family, "tokenizer.json")
+    tok_path = os.path.join(root, "tokenizer", "testdata", "tokenizers", family, "tokenizer.json")
     records_path = os.path.join(root, "align", "testdata", "records.jsonl")
     out = tmp_path / "aligned.jsonl"
     subprocess.run([gainsay_bin, "align", "--spans", records_path, "--tokenizer", tok_path, "--out", str(out)]

@@ -28,7 +28,7 @@ def test_train_step_round_trip(root, server):
     import train_step
 
     summary = train_step.main(["--url", server, "--profile", os.path.join(root, "testdata", "demo", "maren.yaml"),
-                               "--tokenizer", os.path.join(root, "nli", "testdata", "tokenizers", "bpe", "tokenizer.json")])
+                               "--tokenizer", os.path.join(root, "tokenizer", "testdata", "tokenizers", "bpe", "tokenizer.json")])
     # The tiny model flags "never" (and only that): the second sample.
     assert summary["s1"]["verdict"] == "contradiction"
     assert summary["s1"]["penalised_tokens"] >= 1

@@ -13,6 +13,7 @@ import (
 	"sync/atomic"
 	"time"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -25,11 +26,11 @@ type Config struct {
 	MaxBodyBytes int64         // request body limit (4 MiB)
 	MaxReplies   int           // replies per request (1024)
 	MaxFacts     int           // facts per profile (256)
-	MaxChars     int           // characters per reply (profile.DefaultMaxReplyChars)
-	Threshold    float64       // default threshold (profile.DefaultThreshold)
+	MaxChars     int           // characters per reply (gainsay.DefaultMaxReplyChars)
+	Threshold    float64       // default threshold (gainsay.DefaultThreshold)
 	Occlusion    nli.Occlusion
-	Spans        profile.SpanRule
-	OneWay       bool // read pairs only as fact then sentence (see nli.Scorer.BothWays)
+	Spans        gainsay.SpanRule
+	OneWay       bool // read pairs only as fact then sentence (see nli.Scorer.OneWay)
 }
 
 func (c *Config) defaults() {
@@ -52,10 +53,10 @@ func (c *Config) defaults() {
 		c.MaxFacts = 256
 	}
 	if c.MaxChars <= 0 {
-		c.MaxChars = profile.DefaultMaxReplyChars
+		c.MaxChars = gainsay.DefaultMaxReplyChars
 	}
 	if c.Threshold <= 0 {
-		c.Threshold = profile.DefaultThreshold
+		c.Threshold = gainsay.DefaultThreshold
 	}
 }
 
@@ -101,7 +102,7 @@ type CheckRequest struct {
 // CheckResponse is its answer: one record per reply, in order.
 type CheckResponse struct {
 	Model   string           `json:"model"`
-	Records []profile.Record `json:"records"`
+	Records []gainsay.Record `json:"records"`
 }
 
 type errorBody struct {
@@ -178,20 +179,16 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 		}
 		threshold = req.Threshold
 	}
-	replies := make([]profile.Reply, len(req.Replies))
+	replies := make([]gainsay.Reply, len(req.Replies))
 	for i, raw := range req.Replies {
 		var line bytes.Buffer
 		json.Compact(&line, raw)
-		replies[i] = profile.ParseReply(line.Bytes(), fmt.Sprintf("request replies[%d]", i), 0, s.cfg.MaxChars)
+		replies[i] = gainsay.ParseReply(line.Bytes(), fmt.Sprintf("request replies[%d]", i), 0, s.cfg.MaxChars)
 		replies[i].Line = i + 1
 	}
-	checker := &profile.Checker{Scorer: nli.Scorer{Model: s.model, Runner: s.batcher, BothWays: !s.cfg.OneWay}, Threshold: threshold,
-		Occlusion: s.cfg.Occlusion, Spans: s.cfg.Spans, Model: s.name}
-	recs, _, err := checker.Check(prof, replies)
-	if err != nil {
-		fail(w, http.StatusInternalServerError, "scoring failed: %v", err)
-		return
-	}
+	checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: s.model, Runner: s.batcher, OneWay: s.cfg.OneWay},
+		Options: gainsay.Options{Threshold: threshold, Occlusion: s.cfg.Occlusion, Spans: s.cfg.Spans, Model: s.name}}
+	recs, _ := checker.Check(prof, replies)
 	s.served.Add(1)
 	writeJSON(w, http.StatusOK, CheckResponse{Model: s.name, Records: recs})
 }

@@ -1,4 +1,4 @@
-package profile
+package gainsay
 
 import (
 	"bufio"
@@ -11,6 +11,7 @@ import (
 	"strconv"
 
 	"github.com/gainsay/gainsay/internal/jsonl"
+	"github.com/gainsay/gainsay/nli"
 )
 
 // Verdict is the judgement on a whole reply.
@@ -45,6 +46,11 @@ type Probs struct {
 	Neutral       Prob `json:"neutral"`
 }
 
+// ProbsOf is p as written in records.
+func ProbsOf(p nli.Probs) Probs {
+	return Probs{Prob(p.Contradiction), Prob(p.Entailment), Prob(p.Neutral)}
+}
+
 // Record is the output for one input reply: the verdict, the highest contradiction probability over
 // its (fact, sentence) pairs, and a finding for every pair at or above the threshold.
 type Record struct {
@@ -71,7 +77,7 @@ type Finding struct {
 	Sentence SentenceRef `json:"sentence"`
 	Probs    Probs       `json:"probs"`
 	// Spans are the words that drive the contradiction, heaviest first.
-	Spans []PenaltySpan `json:"spans"`
+	Spans []Span `json:"spans"`
 	// Truncated: the pair was longer than the model takes and was cut.
 	Truncated bool `json:"truncated,omitempty"`
 
@@ -88,9 +94,9 @@ type SentenceRef struct {
 	Text      string `json:"text"`
 }
 
-// PenaltySpan is a run of culprit words in the reply and its weight: the largest drop in contradiction
-// probability when one of its words is left out. Offsets as in SentenceRef.
-type PenaltySpan struct {
+// Span is a penalty span: a run of culprit words in the reply and its weight, the largest drop in
+// contradiction probability when one of its words is left out. Offsets as in SentenceRef.
+type Span struct {
 	Start     int    `json:"start"`
 	End       int    `json:"end"`
 	ByteStart int    `json:"byte_start"`
@@ -130,7 +136,7 @@ func (r Record) MarshalJSON() ([]byte, error) {
 	p.Findings = make([]Finding, len(r.Findings))
 	for i, f := range r.Findings {
 		if f.Spans == nil {
-			f.Spans = []PenaltySpan{}
+			f.Spans = []Span{}
 		}
 		p.Findings[i] = f
 	}

@@ -17,13 +17,14 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
 
 // The tiny test model of nli (scripts/reference/make_tiny_models.py): exact and fast.
 func tinyModel(t testing.TB) *nli.Model {
-	m, err := nli.OpenDir("../../nli/testdata/tiny-wordpiece", nli.Options{BatchSize: 16})
+	m, err := nli.OpenDir("../nli/testdata/tiny-wordpiece", nli.Options{BatchSize: 16})
 	require.NoError(t, err, "the ONNX Runtime library is needed: run scripts/install-onnxruntime")
 	t.Cleanup(func() { m.Close() })
 	return m
@@ -61,16 +62,15 @@ func post(t testing.TB, url string, body any) (*http.Response, []byte) {
 func direct(t testing.TB, m *nli.Model, name string, req CheckRequest) []string {
 	prof, err := profile.ParseProfile("request profile", req.Profile, profile.FormatJSON)
 	require.NoError(t, err)
-	replies := make([]profile.Reply, len(req.Replies))
+	replies := make([]gainsay.Reply, len(req.Replies))
 	for i, raw := range req.Replies {
-		replies[i] = profile.ParseReply(raw, fmt.Sprintf("request replies[%d]", i), 0, 0)
+		replies[i] = gainsay.ParseReply(raw, fmt.Sprintf("request replies[%d]", i), 0, 0)
 		replies[i].Line = i + 1
 	}
-	recs, _, err := (&profile.Checker{Scorer: nli.Scorer{Model: m, Runner: m, BothWays: true}, Model: name}).Check(prof, replies)
-	require.NoError(t, err)
+	recs, _ := (&gainsay.Checker{Scorer: &nli.Scorer{Model: m}, Options: gainsay.Options{Model: name}}).Check(prof, replies)
 	out := make([]string, len(recs))
 	for i := range recs {
-		b, err := profile.MarshalRecord(&recs[i])
+		b, err := gainsay.MarshalRecord(&recs[i])
 		require.NoError(t, err)
 		out[i] = string(b)
 	}

@@ -1,4 +1,6 @@
-package profile
+// Package sentence splits replies into sentences: the Unicode sentence boundaries of UAX #29, with
+// the few corrections that chat text needs (abbreviations, initials, lowercase continuations).
+package sentence
 
 import (
 	"strings"
@@ -10,22 +12,17 @@ import (
 	"github.com/gainsay/gainsay/internal/textpos"
 )
 
-// Span is a byte range of a text.
-type Span struct {
-	Start, End int
-}
-
 // boundaries splits text into sentences by the Unicode sentence-boundary rules (UAX #29), as
 // github.com/rivo/uniseg implements them, without any change: every byte belongs to exactly one
 // segment, trailing spaces and line ends included.
-func boundaries(text string) []Span {
-	var out []Span
+func boundaries(text string) []textpos.Range {
+	var out []textpos.Range
 	state := -1
 	pos := 0
 	for rest := text; len(rest) > 0; {
 		var seg string
 		seg, rest, state = uniseg.FirstSentenceInString(rest, state)
-		out = append(out, Span{pos, pos + len(seg)})
+		out = append(out, textpos.Range{Start: pos, End: pos + len(seg)})
 		pos += len(seg)
 	}
 	return out
@@ -66,12 +63,12 @@ func endsWithAbbreviation(s string) bool {
 	return abbreviations[strings.ToLower(word)]
 }
 
-// Sentences splits text into sentences: UAX #29 boundaries, then a boundary is dropped right after a
+// Split splits text into sentences: UAX #29 boundaries, then a boundary is dropped right after a
 // known abbreviation or an initial, and before a segment that starts with a lowercase letter ("Never!"
 // she said), unless a line break separates them. Each sentence is trimmed of surrounding white space;
 // empty segments are left out. Offsets are UTF-8 bytes into text.
-func Sentences(text string) []Span {
-	var out []Span
+func Split(text string) []textpos.Range {
+	var out []textpos.Range
 	merge := false
 	for _, b := range boundaries(text) {
 		s := trimSpan(text, b)
@@ -89,7 +86,7 @@ func Sentences(text string) []Span {
 	return out
 }
 
-func trimSpan(text string, s Span) Span {
+func trimSpan(text string, s textpos.Range) textpos.Range {
 	s.Start, s.End = textpos.Trim(text, s.Start, s.End, unicode.IsSpace)
 	return s
 }

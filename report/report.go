@@ -15,6 +15,7 @@ import (
 	"slices"
 	"strings"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/rates"
 	"github.com/gainsay/gainsay/profile"
 )
@@ -73,7 +74,7 @@ type Item struct {
 // FindingView is one contradicted fact and the sentence with its culprit words marked.
 type FindingView struct {
 	FactID, Fact string
-	Probs        profile.Probs
+	Probs        gainsay.Probs
 	Segments     []Segment
 }
 
@@ -100,7 +101,7 @@ func Build(prof *profile.Profile, paths []string, opts Options) (*Page, error) {
 		if err != nil {
 			return nil, err
 		}
-		rr := profile.NewRecordReader(f, path)
+		rr := gainsay.NewRecordReader(f, path)
 		counter := rates.NewCounter(filepath.Base(path), prof.Facts)
 		for {
 			rec, err := rr.Next()
@@ -115,7 +116,7 @@ func Build(prof *profile.Profile, paths []string, opts Options) (*Page, error) {
 			if t := fmt.Sprint(float64(rec.Threshold)); !slices.Contains(thresholds, t) {
 				thresholds = append(thresholds, t)
 			}
-			if rec.Verdict == profile.Contradiction {
+			if rec.Verdict == gainsay.Contradiction {
 				p.Flagged++
 				pushItem(top, toItem(&rec, filepath.Base(path), fi), opts.MaxList)
 			}
@@ -161,7 +162,7 @@ func Build(prof *profile.Profile, paths []string, opts Options) (*Page, error) {
 	return p, nil
 }
 
-func toItem(rec *profile.Record, file string, fi int) Item {
+func toItem(rec *gainsay.Record, file string, fi int) Item {
 	it := Item{File: file, FileIdx: fi, ID: rec.ID, Score: float64(rec.Score), Text: rec.Text, Context: rec.Context}
 	var ids []string
 	for _, f := range rec.Findings {
@@ -175,13 +176,13 @@ func toItem(rec *profile.Record, file string, fi int) Item {
 }
 
 // segments cuts the finding's sentence at its spans (which never overlap within a finding).
-func segments(text string, f profile.Finding) []Segment {
+func segments(text string, f gainsay.Finding) []Segment {
 	s0, s1 := f.Sentence.ByteStart, f.Sentence.ByteEnd
 	if s0 < 0 || s1 > len(text) || s0 > s1 {
 		return []Segment{{Text: f.Sentence.Text}}
 	}
 	spans := slices.Clone(f.Spans)
-	slices.SortFunc(spans, func(a, b profile.PenaltySpan) int { return cmp.Compare(a.ByteStart, b.ByteStart) })
+	slices.SortFunc(spans, func(a, b gainsay.Span) int { return cmp.Compare(a.ByteStart, b.ByteStart) })
 	var out []Segment
 	at := s0
 	for _, sp := range spans {

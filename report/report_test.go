@@ -12,6 +12,7 @@ import (
 	"github.com/stretchr/testify/require"
 	"golang.org/x/net/html"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/profile"
 )
 
@@ -106,7 +107,7 @@ func TestStructure(t *testing.T) {
 	}
 	for _, name := range []string{"testdata/step100.jsonl", "testdata/step200.jsonl"} {
 		f, _ := os.Open(name)
-		recs, err := profile.ReadAllRecords(f, name)
+		recs, err := gainsay.ReadAllRecords(f, name)
 		f.Close()
 		require.NoError(t, err)
 		for _, r := range recs {

@@ -1,10 +1,11 @@
-package profile
+package gainsay
 
 import (
 	"bytes"
 	"context"
 	"errors"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -13,37 +14,40 @@ import (
 
 	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/profile"
 )
 
 // tinyModel is nli's test model whose contradiction logit is 4 per "never" in the hypothesis (see
 // scripts/reference/make_tiny_models.py); the expected numbers below follow from its softmax.
 func tinyModel(t *testing.T) *nli.Model {
 	t.Helper()
-	m, err := nli.OpenDir("../nli/testdata/tiny-wordpiece", nli.Options{})
+	m, err := nli.OpenDir("nli/testdata/tiny-wordpiece", nli.Options{})
 	require.NoError(t, err, "the ONNX Runtime library is needed: run scripts/install-onnxruntime")
 	t.Cleanup(func() { m.Close() })
 	return m
 }
 
+// tinyScorer reads pairs one way with the tiny model.
+func tinyScorer(t *testing.T) *nli.Scorer { return &nli.Scorer{Model: tinyModel(t), OneWay: true} }
+
 func softmaxC(c, e, n float64) float64 {
 	return math.Exp(c) / (math.Exp(c) + math.Exp(e) + math.Exp(n))
 }
 
-var maren = &Profile{Character: "maren", File: "maren.yaml", Facts: []Fact{
+var maren = &profile.Profile{Character: "maren", File: "maren.yaml", Facts: []profile.Fact{
 	{ID: "home", Text: "I live in the lighthouse on Gull Point.", Line: 3},
 	{ID: "swim", Text: "I swim in the sea every morning.", Line: 5},
 }}
 
 func TestCheckWithTinyModel(t *testing.T) {
-	c := &Checker{Scorer: tinyModel(t), Model: "tiny"}
+	c := &Checker{Scorer: tinyScorer(t), Options: Options{Model: "tiny"}}
 	replies := []Reply{
 		{ID: "r1", Text: "Ich wohne in Zürich. I have never seen the sea.", Line: 1},
 		{ID: "r2", Text: "I like boats.", Line: 2},
 		{ID: "r3", Line: 3, Err: errors.New("r.jsonl:3: text: missing")},
 		{ID: "r4", Text: "   ", Line: 4},
 	}
-	recs, st, err := c.Check(maren, replies)
-	require.NoError(t, err)
+	recs, st := c.Check(maren, replies)
 	require.Len(t, recs, 4)
 	assert.Equal(t, Stats{Replies: 4, Contradictions: 1, Errors: 1, Pairs: 6, Attributed: 2}, Stats{
 		Replies: st.Replies, Contradictions: st.Contradictions, Errors: st.Errors, Pairs: st.Pairs, Attributed: st.Attributed})
@@ -58,7 +62,7 @@ func TestCheckWithTinyModel(t *testing.T) {
 	// "Ich wohne in Zürich. " is 21 code points but 22 bytes (ü).
 	assert.Equal(t, SentenceRef{Start: 21, End: 47, ByteStart: 22, ByteEnd: 48, Text: "I have never seen the sea."}, f.Sentence)
 	require.Len(t, f.Spans, 1)
-	assert.Equal(t, PenaltySpan{Start: 28, End: 33, ByteStart: 29, ByteEnd: 34, Text: "never", Weight: f.Spans[0].Weight}, f.Spans[0])
+	assert.Equal(t, Span{Start: 28, End: 33, ByteStart: 29, ByteEnd: 34, Text: "never", Weight: f.Spans[0].Weight}, f.Spans[0])
 	assert.InDelta(t, high-low, float64(f.Spans[0].Weight), 1e-6)
 	assert.Equal(t, []rune(r1.Text)[28:33], []rune("never"), "code-point offsets index the text as Python does")
 
@@ -72,26 +76,24 @@ func TestCheckWithTinyModel(t *testing.T) {
 }
 
 func TestThresholdAndSpanRule(t *testing.T) {
-	m := tinyModel(t)
+	m := tinyScorer(t)
 	reply := []Reply{{ID: "r", Text: "I have never seen the sea.", Line: 1}}
 	high := softmaxC(4, 0, 1)
-	c := &Checker{Scorer: m, Threshold: high + 0.01}
-	recs, _, err := c.Check(maren, reply)
-	require.NoError(t, err)
+	c := &Checker{Scorer: m, Options: Options{Threshold: high + 0.01}}
+	recs, _ := c.Check(maren, reply)
 	assert.Equal(t, Consistent, recs[0].Verdict, "below a threshold above its score")
-	c = &Checker{Scorer: m, Spans: SpanRule{MinWeight: 0.99, Relative: 0.5}}
-	recs, _, err = c.Check(maren, reply)
-	require.NoError(t, err)
+	c = &Checker{Scorer: m, Options: Options{Spans: SpanRule{MinWeight: 0.99, Relative: 0.5}}}
+	recs, _ = c.Check(maren, reply)
 	assert.Equal(t, Contradiction, recs[0].Verdict)
 	assert.Empty(t, recs[0].Findings[0].Spans, "no word moves the probability by 0.99")
 }
 
-func TestPenaltySpansMergeAdjacent(t *testing.T) {
+func TestSpansMergeAdjacent(t *testing.T) {
 	text := "We never ever sail. Ok"
 	words := []nli.WordWeight{{Start: 0, End: 2, Weight: 0.0}, {Start: 3, End: 8, Weight: 0.6}, {Start: 9, End: 13, Weight: 0.4}, {Start: 14, End: 18, Weight: 0.01}, {Start: 18, End: 19, Weight: 0.29}}
 	got := penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
 	require.Len(t, got, 1)
-	assert.Equal(t, PenaltySpan{Start: 3, End: 13, ByteStart: 3, ByteEnd: 13, Text: "never ever", Weight: 0.6}, got[0])
+	assert.Equal(t, Span{Start: 3, End: 13, ByteStart: 3, ByteEnd: 13, Text: "never ever", Weight: 0.6}, got[0])
 
 	words = []nli.WordWeight{{Start: 0, End: 2, Weight: 0.5}, {Start: 3, End: 8, Weight: 0.0}, {Start: 9, End: 13, Weight: 0.9}}
 	got = penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
@@ -99,35 +101,41 @@ func TestPenaltySpansMergeAdjacent(t *testing.T) {
 	assert.Equal(t, []string{"ever", "We"}, []string{got[0].Text, got[1].Text}, "heaviest first")
 }
 
-// failingScorer fails any batch that holds the word "boom".
-type failingScorer struct{ inner Scorer }
-
-func (f failingScorer) Predict(p []nli.Pair) ([]nli.Probs, error) {
-	for _, x := range p {
-		if strings.Contains(x.Hypothesis, "boom") {
-			return nil, errors.New("the model broke")
-		}
-	}
-	return f.inner.Predict(p)
+// failingRunner fails any batch that holds the tokens of the word "kaboom".
+type failingRunner struct {
+	inner nli.Runner
+	bad   []int64
 }
 
-func (f failingScorer) Attribute(p []nli.Pair, how nli.Occlusion) ([]nli.Attribution, error) {
-	return f.inner.Attribute(p, how)
+func (f failingRunner) PredictEncoded(encs []nli.Encoding) ([]nli.Probs, error) {
+	for _, e := range encs {
+		for i := 0; i+len(f.bad) <= len(e.IDs); i++ {
+			if slices.Equal(e.IDs[i:i+len(f.bad)], f.bad) {
+				return nil, errors.New("the model broke")
+			}
+		}
+	}
+	return f.inner.PredictEncoded(encs)
 }
 
 func TestScorerFailureIsolatesReply(t *testing.T) {
-	c := &Checker{Scorer: failingScorer{tinyModel(t)}}
-	recs, st, err := c.Check(maren, []Reply{
-		{ID: "a", Text: "I have never seen the sea."}, {ID: "b", Text: "boom"}, {ID: "c", Text: "Fine."},
-	})
+	m := tinyModel(t)
+	pieces, err := m.Tokenizer().Tokenize("kaboom")
 	require.NoError(t, err)
+	var bad []int64
+	for _, p := range pieces {
+		bad = append(bad, int64(p.ID))
+	}
+	c := &Checker{Scorer: &nli.Scorer{Model: m, Runner: failingRunner{m, bad}, OneWay: true}}
+	recs, st := c.Check(maren, []Reply{
+		{ID: "a", Text: "I have never seen the sea."}, {ID: "b", Text: "kaboom"}, {ID: "c", Text: "Fine."},
+	})
 	assert.Equal(t, []Verdict{Contradiction, Failed, Consistent}, []Verdict{recs[0].Verdict, recs[1].Verdict, recs[2].Verdict})
 	assert.Contains(t, recs[1].Error, "the model broke")
 	assert.Equal(t, 1, st.Errors)
 
 	// Alone in its batch, the failing reply is still an error record, not a failed run.
-	recs, st, err = c.Check(maren, []Reply{{ID: "b", Text: "boom"}})
-	require.NoError(t, err)
+	recs, st = c.Check(maren, []Reply{{ID: "b", Text: "kaboom"}})
 	assert.Equal(t, Failed, recs[0].Verdict)
 	assert.Equal(t, 1, st.Errors)
 }
@@ -135,7 +143,7 @@ func TestScorerFailureIsolatesReply(t *testing.T) {
 func TestRunStreamsEveryReply(t *testing.T) {
 	in := strings.Repeat(`{"id":"x","text":"I have never seen the sea."}`+"\n"+`bad`+"\n", 50)
 	var out bytes.Buffer
-	c := &Checker{Scorer: tinyModel(t)}
+	c := &Checker{Scorer: tinyScorer(t)}
 	calls := 0
 	st, err := c.Run(context.Background(), maren, NewReplyReader(strings.NewReader(in), "r.jsonl", FormatJSONL, 0),
 		NewRecordWriter(&out), RunOptions{Chunk: 7, Progress: func(int) { calls++ }})

@@ -20,9 +20,9 @@ import (
 	"unicode"
 	"unicode/utf8"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/internal/textpos"
-	"github.com/gainsay/gainsay/profile"
 )
 
 // Labels in the order every report uses.
@@ -42,7 +42,7 @@ func LabelIndex(s string) int {
 // the data's construction) blames for the label.
 type Item struct {
 	Premise, Hypothesis, Label string
-	Gold                       []profile.Span
+	Gold                       []textpos.Range
 	// Source names the row: "file:line" or the data set's own id.
 	Source string
 }
@@ -103,7 +103,7 @@ func DetectFormat(path string) (Format, error) {
 }
 
 func inputErr(file string, line int, field, format string, args ...any) error {
-	return &profile.InputError{File: file, Line: line, Field: field, Msg: fmt.Sprintf(format, args...)}
+	return &gainsay.InputError{File: file, Line: line, Field: field, Msg: fmt.Sprintf(format, args...)}
 }
 
 // ReadPairs reads gainsay's pairs format: one JSON object a line with premise, hypothesis and label
@@ -168,8 +168,8 @@ func parsePair(path string, line int, raw []byte) (Item, error) {
 
 // goldFrom turns culprit words (matched case-insensitively against the text's space-separated words,
 // punctuation ignored) or code-point ranges into byte ranges.
-func goldFrom(text string, words []string, spans [][2]int) ([]profile.Span, error) {
-	var out []profile.Span
+func goldFrom(text string, words []string, spans [][2]int) ([]textpos.Range, error) {
+	var out []textpos.Range
 	if len(words) > 0 {
 		want := map[string]bool{}
 		for _, w := range words {
@@ -187,7 +187,7 @@ func goldFrom(text string, words []string, spans [][2]int) ([]profile.Span, erro
 		if s[0] < 0 || s[1] > n || s[0] >= s[1] {
 			return nil, fmt.Errorf("[%d, %d] is not a range of the hypothesis (%d characters)", s[0], s[1], n)
 		}
-		out = append(out, profile.Span{Start: idx.Bytes(s[0]), End: idx.Bytes(s[1])})
+		out = append(out, textpos.Range{Start: idx.Bytes(s[0]), End: idx.Bytes(s[1])})
 	}
 	return out, nil
 }
@@ -197,13 +197,13 @@ func normWord(w string) string {
 }
 
 // spaceWords returns the byte ranges of the text's space-separated words.
-func spaceWords(text string) []profile.Span {
-	var out []profile.Span
+func spaceWords(text string) []textpos.Range {
+	var out []textpos.Range
 	start := -1
 	for i, r := range text {
 		if r == ' ' {
 			if start >= 0 {
-				out = append(out, profile.Span{Start: start, End: i})
+				out = append(out, textpos.Range{Start: start, End: i})
 				start = -1
 			}
 		} else if start < 0 {
@@ -211,7 +211,7 @@ func spaceWords(text string) []profile.Span {
 		}
 	}
 	if start >= 0 {
-		out = append(out, profile.Span{Start: start, End: len(text)})
+		out = append(out, textpos.Range{Start: start, End: len(text)})
 	}
 	return out
 }
@@ -313,7 +313,7 @@ func ReadBreaking(path string, heldOut bool) ([]Item, error) {
 
 // substituted returns the hypothesis words between the longest common prefix and suffix of the two
 // sentences' space-separated words, compared without case and surrounding punctuation.
-func substituted(premise, hypothesis string) []profile.Span {
+func substituted(premise, hypothesis string) []textpos.Range {
 	pw, hw := spaceWords(premise), spaceWords(hypothesis)
 	eq := func(i, j int) bool {
 		return normWord(premise[pw[i].Start:pw[i].End]) == normWord(hypothesis[hw[j].Start:hw[j].End])
@@ -375,7 +375,7 @@ func ReadESNLI(path string) ([]Item, error) {
 				}
 			}
 		}
-		var spans []profile.Span
+		var spans []textpos.Range
 		for i, w := range spaceWords(hyp) {
 			if gold[i] {
 				spans = append(spans, trimPunct(hyp, w))
@@ -397,7 +397,7 @@ func markedWords(marked string) []int {
 	return out
 }
 
-func trimPunct(text string, s profile.Span) profile.Span {
+func trimPunct(text string, s textpos.Range) textpos.Range {
 	s.Start, s.End = textpos.Trim(text, s.Start, s.End, unicode.IsPunct)
 	return s
 }

@@ -1,4 +1,4 @@
-package profile
+package gainsay
 
 import (
 	"cmp"
@@ -9,15 +9,11 @@ import (
 	"slices"
 	"time"
 
+	"github.com/gainsay/gainsay/internal/sentence"
 	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/profile"
 )
-
-// Scorer is what the check needs from an NLI model; *nli.Model is one.
-type Scorer interface {
-	Predict(pairs []nli.Pair) ([]nli.Probs, error)
-	Attribute(pairs []nli.Pair, how nli.Occlusion) ([]nli.Attribution, error)
-}
 
 // SpanRule says which attributed words become penalty spans: a word whose weight is at least MinWeight
 // and at least Relative times the pair's largest word weight.
@@ -51,14 +47,20 @@ var DefaultSpanRule = SpanRule{MinWeight: 0.001, Relative: 0.5}
 // DefaultThreshold is the contradiction probability at which a pair is flagged.
 const DefaultThreshold = 0.5
 
-// Checker scores replies against a profile and turns contradictions into penalty spans.
-type Checker struct {
-	Scorer    Scorer
+// Options tune a Checker. The zero value takes the defaults.
+type Options struct {
 	Threshold float64       // 0: DefaultThreshold
 	Occlusion nli.Occlusion // "": nli.Delete
 	Spans     SpanRule      // zero: DefaultSpanRule
 	// Model names the model in every record (e.g. "builtin@1a2b3c4d").
 	Model string
+}
+
+// Checker scores replies against a profile and turns contradictions into penalty spans. It is safe
+// for concurrent use when its Scorer's Runner is.
+type Checker struct {
+	Scorer *nli.Scorer
+	Options
 }
 
 // Stats summarise a run.
@@ -86,13 +88,13 @@ func (c *Checker) spanRule() SpanRule {
 // pairRef ties a scored pair to its reply, fact and sentence.
 type pairRef struct {
 	reply, fact int
-	sent        Span
+	sent        textpos.Range
 }
 
 // Check returns one record per reply, in order. Replies with Err set become error records. If the
 // scorer fails on the batch, each reply is retried alone, so that one bad reply cannot sink the others;
-// a reply that fails alone becomes an error record with the scorer's reason.
-func (c *Checker) Check(p *Profile, replies []Reply) ([]Record, Stats, error) {
+// a reply that fails alone becomes an error record with the scorer's reason. Check cannot fail.
+func (c *Checker) Check(p *profile.Profile, replies []Reply) ([]Record, Stats) {
 	start := time.Now()
 	recs, st, err := c.check(p, replies)
 	if err != nil {
@@ -126,10 +128,10 @@ func (c *Checker) Check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 		}
 	}
 	st.Elapsed = time.Since(start)
-	return recs, st, nil
+	return recs, st
 }
 
-func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
+func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, error) {
 	var st Stats
 	recs := make([]Record, len(replies))
 	var refs []pairRef
@@ -141,7 +143,7 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 			recs[i].Verdict, recs[i].Error = Failed, r.Err.Error()
 			continue
 		}
-		sentences := Sentences(r.Text)
+		sentences := sentence.Split(r.Text)
 		for fi, f := range p.Facts {
 			for _, s := range sentences {
 				refs = append(refs, pairRef{i, fi, s})
@@ -153,23 +155,23 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 	if len(pairs) == 0 {
 		return recs, st, nil
 	}
-	probs, err := c.Scorer.Predict(pairs)
+	scored, err := c.Scorer.Score(pairs)
 	if err != nil {
 		return nil, st, fmt.Errorf("scoring: %w", err)
 	}
 	var flagged []int
-	for k, pr := range probs {
+	for k, sc := range scored {
 		rec := &recs[refs[k].reply]
-		rec.Score = max(rec.Score, Prob(pr.Contradiction))
-		if pr.Contradiction >= c.threshold() {
+		rec.Score = max(rec.Score, Prob(sc.Probs.Contradiction))
+		if sc.Probs.Contradiction >= c.threshold() {
 			flagged = append(flagged, k)
 		}
 	}
 	st.Attributed = len(flagged)
 	if len(flagged) > 0 {
-		fp := make([]nli.Pair, len(flagged))
+		fp := make([]nli.Scored, len(flagged))
 		for j, k := range flagged {
-			fp[j] = pairs[k]
+			fp[j] = scored[k]
 		}
 		how := c.Occlusion
 		if how == "" {
@@ -179,11 +181,16 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 		if err != nil {
 			return nil, st, fmt.Errorf("attribution: %w", err)
 		}
+		indexes := map[int]textpos.Index{}
 		for j, k := range flagged {
 			ref := refs[k]
 			rec := &recs[ref.reply]
 			fact := p.Facts[ref.fact]
-			idx := textpos.New(rec.Text)
+			idx, ok := indexes[ref.reply]
+			if !ok {
+				idx = textpos.New(rec.Text)
+				indexes[ref.reply] = idx
+			}
 			rec.Verdict = Contradiction
 			rec.Findings = append(rec.Findings, Finding{
 				FactID: fact.ID,
@@ -193,7 +200,7 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 					ByteStart: ref.sent.Start, ByteEnd: ref.sent.End,
 					Text: rec.Text[ref.sent.Start:ref.sent.End],
 				},
-				Probs:     Probs{Prob(probs[k].Contradiction), Prob(probs[k].Entailment), Prob(probs[k].Neutral)},
+				Probs:     ProbsOf(scored[k].Probs),
 				Spans:     penaltySpans(rec.Text, idx, ref.sent.Start, attrs[j].Words, c.spanRule()),
 				Truncated: attrs[j].Truncated,
 				order:     ref.fact,
@@ -211,13 +218,13 @@ func (c *Checker) check(p *Profile, replies []Reply) ([]Record, Stats, error) {
 
 // penaltySpans turns word weights of one sentence (offsets relative to the sentence at byte offset
 // base of text) into merged spans over text, heaviest first.
-func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeight, rule SpanRule) []PenaltySpan {
+func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeight, rule SpanRule) []Span {
 	weights := make([]float64, len(words))
 	for i, w := range words {
 		weights[i] = w.Weight
 	}
 	culprits := rule.Culprits(weights)
-	var spans []PenaltySpan
+	var spans []Span
 	open := false
 	for i, w := range words {
 		if !culprits[i] {
@@ -231,7 +238,7 @@ func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeig
 			last.Weight = max(last.Weight, Prob(w.Weight))
 			continue
 		}
-		spans = append(spans, PenaltySpan{ByteStart: s, ByteEnd: e, Weight: Prob(w.Weight)})
+		spans = append(spans, Span{ByteStart: s, ByteEnd: e, Weight: Prob(w.Weight)})
 		open = true
 	}
 	for i := range spans {
@@ -239,7 +246,7 @@ func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeig
 		sp.Start, sp.End = idx.Runes(sp.ByteStart), idx.Runes(sp.ByteEnd)
 		sp.Text = text[sp.ByteStart:sp.ByteEnd]
 	}
-	slices.SortStableFunc(spans, func(a, b PenaltySpan) int {
+	slices.SortStableFunc(spans, func(a, b Span) int {
 		return cmp.Or(cmp.Compare(b.Weight, a.Weight), cmp.Compare(a.Start, b.Start))
 	})
 	return spans
@@ -255,7 +262,7 @@ type RunOptions struct {
 
 // Run checks every reply of rr and writes one record per reply to w, in input order, chunk by chunk.
 // It stops early only for read, write or scoring failures of the whole run, or when ctx is done.
-func (c *Checker) Run(ctx context.Context, p *Profile, rr *ReplyReader, w *RecordWriter, opts RunOptions) (Stats, error) {
+func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, w *RecordWriter, opts RunOptions) (Stats, error) {
 	start := time.Now()
 	chunk := opts.Chunk
 	if chunk <= 0 {
@@ -267,10 +274,7 @@ func (c *Checker) Run(ctx context.Context, p *Profile, rr *ReplyReader, w *Recor
 		if len(batch) == 0 {
 			return nil
 		}
-		recs, st, err := c.Check(p, batch)
-		if err != nil {
-			return err
-		}
+		recs, st := c.Check(p, batch)
 		for i := range recs {
 			if err := w.Write(&recs[i]); err != nil {
 				return err

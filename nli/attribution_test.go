@@ -6,6 +6,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"github.com/gainsay/gainsay/tokenizer"
 )
 
 func TestWords(t *testing.T) {
@@ -21,13 +23,14 @@ func TestWords(t *testing.T) {
 		{"  Leading spaces", []string{"Leading", "spaces"}},
 	}
 	for _, fam := range []string{"wordpiece", "bpe", "unigram"} {
-		tk := loadTokenizerFile(t, "testdata/tokenizers/"+fam+"/tokenizer.json")
+		tk, err := tokenizer.LoadFile("../tokenizer/testdata/tokenizers/" + fam + "/tokenizer.json")
+		require.NoError(t, err)
 		for _, c := range cases {
 			pieces, err := tk.Tokenize(c.text)
 			require.NoError(t, err)
 			var got []string
-			for _, w := range Words(c.text, pieces) {
-				got = append(got, c.text[w.Start:w.End])
+			for _, w := range words(c.text, pieces) {
+				got = append(got, c.text[w.start:w.end])
 			}
 			assert.Equal(t, c.want, got, "%s: %q", fam, c.text)
 		}
@@ -35,20 +38,21 @@ func TestWords(t *testing.T) {
 }
 
 func TestTruncationKeepsHypothesis(t *testing.T) {
-	tk := loadTokenizerFile(t, "testdata/tokenizers/wordpiece/tokenizer.json")
+	tk, err := tokenizer.LoadFile("../tokenizer/testdata/tokenizers/wordpiece/tokenizer.json")
+	require.NoError(t, err)
 	premise := strings.Repeat("the harbour is full of boats ", 20)
 	hyp := "I have never seen the sea."
-	full, err := tk.EncodePair(premise, hyp, 0)
+	full, err := encodePair(tk, premise, hyp, 0)
 	require.NoError(t, err)
-	cut, err := tk.EncodePair(premise, hyp, 32)
+	cut, err := encodePair(tk, premise, hyp, 32)
 	require.NoError(t, err)
 	assert.False(t, full.Truncated)
 	assert.True(t, cut.Truncated)
 	assert.Equal(t, 32, cut.Len())
 	hypTokens := func(e Encoding) []int64 {
 		var ids []int64
-		for i, s := range e.Segments {
-			if s == Hypothesis {
+		for i, s := range e.Seq {
+			if s == 1 {
 				ids = append(ids, e.IDs[i])
 			}
 		}
@@ -57,43 +61,14 @@ func TestTruncationKeepsHypothesis(t *testing.T) {
 	assert.Equal(t, hypTokens(full), hypTokens(cut), "hypothesis kept whole")
 
 	// When even a quarter of the limit for the premise leaves no room, the hypothesis is cut too.
-	tiny, err := tk.EncodePair(premise, strings.Repeat(hyp+" ", 10), 24)
+	tiny, err := encodePair(tk, premise, strings.Repeat(hyp+" ", 10), 24)
 	require.NoError(t, err)
 	assert.Equal(t, 24, tiny.Len())
 	prem := 0
-	for _, s := range tiny.Segments {
-		if s == Premise {
+	for _, s := range tiny.Seq {
+		if s == 0 {
 			prem++
 		}
 	}
 	assert.Equal(t, 6, prem, "premise keeps a quarter of the limit")
-}
-
-func TestUnsupportedTokenizer(t *testing.T) {
-	_, err := LoadTokenizer([]byte(`{"model":{"type":"Mystery"}}`))
-	assert.ErrorContains(t, err, `model type "Mystery" is not supported`)
-	_, err = LoadTokenizer([]byte(`not json`))
-	assert.ErrorContains(t, err, "tokenizer.json")
-}
-
-func TestTokenizeConcurrently(t *testing.T) {
-	// gainsay serve tokenises from many goroutines at once; run with -race to check.
-	for _, fam := range []string{"wordpiece", "bpe", "unigram"} {
-		tk := loadTokenizerFile(t, "testdata/tokenizers/"+fam+"/tokenizer.json")
-		want, err := tk.Tokenize("I have never seen the sea, not once.")
-		require.NoError(t, err)
-		done := make(chan []Piece, 8)
-		for g := 0; g < 8; g++ {
-			go func() {
-				var last []Piece
-				for i := 0; i < 50; i++ {
-					last, _ = tk.Tokenize("I have never seen the sea, not once.")
-				}
-				done <- last
-			}()
-		}
-		for g := 0; g < 8; g++ {
-			assert.Equal(t, want, <-done, fam)
-		}
-	}
 }

@@ -6,7 +6,9 @@ import (
 	"io"
 	"os"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/metrics"
+	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/profile"
 )
 
@@ -16,9 +18,9 @@ var ReplyLabels = []string{"contradiction", "consistent"}
 // LabelledReply is a reply with a person's judgement against the profile, and optionally the words
 // that person blames.
 type LabelledReply struct {
-	Reply profile.Reply
+	Reply gainsay.Reply
 	Label string
-	Gold  []profile.Span
+	Gold  []textpos.Range
 }
 
 // ReadLabelledReplies reads gainsay's labelled replies: one JSON object a line with id, text, label
@@ -31,7 +33,7 @@ func ReadLabelledReplies(path string) ([]LabelledReply, error) {
 	}
 	defer f.Close()
 	var out []LabelledReply
-	rr := profile.NewReplyReader(f, path, profile.FormatJSONL, 0)
+	rr := gainsay.NewReplyReader(f, path, gainsay.FormatJSONL, 0)
 	for {
 		rep, err := rr.Next()
 		if errors.Is(err, io.EOF) {
@@ -73,15 +75,12 @@ func ReadLabelledReplies(path string) ([]LabelledReply, error) {
 // Replies evaluates the whole check (sentences, every fact, the threshold) on labelled replies. The
 // score of a reply is its record's score; rationales compare the record's penalty spans with the gold
 // words: token-level precision/recall/F1 over the reply's words and hit@1 of the heaviest span.
-func Replies(c *profile.Checker, prof *profile.Profile, items []LabelledReply, target float64) (*Report, error) {
-	replies := make([]profile.Reply, len(items))
+func Replies(c *gainsay.Checker, prof *profile.Profile, items []LabelledReply, target float64) (*Report, error) {
+	replies := make([]gainsay.Reply, len(items))
 	for i, it := range items {
 		replies[i] = it.Reply
 	}
-	recs, _, err := c.Check(prof, replies)
-	if err != nil {
-		return nil, err
-	}
+	recs, _ := c.Check(prof, replies)
 	truth, pred := make([]int, len(items)), make([]int, len(items))
 	conf, score := make([]float64, len(items)), make([]float64, len(items))
 	correct, pos := make([]bool, len(items)), make([]bool, len(items))
@@ -90,7 +89,7 @@ func Replies(c *profile.Checker, prof *profile.Profile, items []LabelledReply, t
 		if items[i].Label != "contradiction" {
 			truth[i] = 1
 		}
-		if rec.Verdict != profile.Contradiction {
+		if rec.Verdict != gainsay.Contradiction {
 			pred[i] = 1
 		}
 		s := float64(rec.Score)
@@ -115,7 +114,7 @@ func Replies(c *profile.Checker, prof *profile.Profile, items []LabelledReply, t
 
 // replyRationale scores the reply's space-separated words: weight is the heaviest span over the word
 // in any finding, picked when a span covers it.
-func replyRationale(rec profile.Record, gold []profile.Span) metrics.RationaleInstance {
+func replyRationale(rec gainsay.Record, gold []textpos.Range) metrics.RationaleInstance {
 	words := spaceWords(rec.Text)
 	x := metrics.RationaleInstance{Gold: make([]bool, len(words)), Weight: make([]float64, len(words)), Picked: make([]bool, len(words))}
 	for i, w := range words {

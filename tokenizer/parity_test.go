@@ -1,4 +1,4 @@
-package nli
+package tokenizer
 
 import (
 	"fmt"
@@ -44,7 +44,7 @@ func loadTokenizerFile(t testing.TB, path string) *Tokenizer {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tk, err := LoadTokenizer(data)
+	tk, err := Load(data)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -71,7 +71,7 @@ func TestTokenizerParity(t *testing.T) {
 			}
 			failed := 0
 			for i, p := range pairs {
-				got, err := tk.EncodePair(p.Premise, p.Hypothesis, 0)
+				got, err := tk.EncodePair(p.Premise, p.Hypothesis)
 				if err != nil {
 					t.Errorf("%s: %v", p.Source, err)
 					continue
@@ -99,14 +99,14 @@ func compareEncoding(got Encoding, want parityExpected, p parityPair) string {
 	}
 	pre, hyp := textpos.New(p.Premise), textpos.New(p.Hypothesis)
 	for j := range got.IDs {
-		if int(got.Segments[j]) != want.SequenceIDs[j] {
-			return fmt.Sprintf("token %d: segment %d, want %d", j, got.Segments[j], want.SequenceIDs[j])
+		if int(got.Seq[j]) != want.SequenceIDs[j] {
+			return fmt.Sprintf("token %d: segment %d, want %d", j, got.Seq[j], want.SequenceIDs[j])
 		}
 		var x textpos.Index
-		switch got.Segments[j] {
-		case Premise:
+		switch got.Seq[j] {
+		case 0:
 			x = pre
-		case Hypothesis:
+		case 1:
 			x = hyp
 		default:
 			continue

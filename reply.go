@@ -1,4 +1,4 @@
-package profile
+package gainsay
 
 import (
 	"bytes"
@@ -10,7 +10,25 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"github.com/gainsay/gainsay/internal/inputerr"
 	"github.com/gainsay/gainsay/internal/jsonl"
+	"github.com/gainsay/gainsay/internal/textpos"
+)
+
+// InputError is bad input: the file, the 1-based line (0 when unknown), the field and what is wrong.
+type InputError = inputerr.Error
+
+func inputErr(file string, line int, field, format string, args ...any) *InputError {
+	return inputerr.New(file, line, field, format, args...)
+}
+
+// Format names a replies format.
+type Format string
+
+const (
+	FormatAuto  Format = ""
+	FormatJSONL Format = "jsonl"
+	FormatText  Format = "text"
 )
 
 // Reply is one sampled reply to check. A reply that could not be read has Err set: it still gets its
@@ -80,7 +98,7 @@ func (rr *ReplyReader) parse(raw []byte) Reply {
 	if rr.format == FormatText {
 		rep := Reply{Line: rr.line}
 		if !utf8.Valid(raw) {
-			rep.Err = inputErr(rr.name, rr.line, "", "invalid UTF-8 at byte %d of the line", firstInvalidUTF8(raw)+1)
+			rep.Err = inputErr(rr.name, rr.line, "", "invalid UTF-8 at byte %d of the line", textpos.FirstInvalidUTF8(raw)+1)
 			return rep
 		}
 		rep.ID = fmt.Sprintf("line-%d", rr.line)
@@ -114,7 +132,7 @@ func (rr replyParser) parse(raw []byte) Reply {
 	rep := Reply{Line: rr.line}
 	if !utf8.Valid(raw) {
 		// encoding/json would quietly turn invalid bytes into U+FFFD; say so instead.
-		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", firstInvalidUTF8(raw)+1)
+		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", textpos.FirstInvalidUTF8(raw)+1)
 	}
 	var fields map[string]json.RawMessage
 	if err := json.Unmarshal(raw, &fields); err != nil {

@@ -5,17 +5,11 @@ import (
 	"math/rand/v2"
 	"unicode"
 
+	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/metrics"
+	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/nli"
-	"github.com/gainsay/gainsay/profile"
 )
-
-// Model is what evaluation needs from an NLI model; *nli.Model is one.
-type Model interface {
-	Predict(pairs []nli.Pair) ([]nli.Probs, error)
-	Attribute(pairs []nli.Pair, how nli.Occlusion) ([]nli.Attribution, error)
-	ScoreKept(p nli.Pair, keep [][]bool) ([]nli.Probs, error)
-}
 
 // Options tune Pairs.
 type Options struct {
@@ -24,7 +18,7 @@ type Options struct {
 	// Rationales evaluates attribution on gold-contradiction items that carry gold words.
 	Rationales bool
 	Occlusion  nli.Occlusion
-	Spans      profile.SpanRule
+	Spans      gainsay.SpanRule
 	// Seed for the random baseline.
 	Seed uint64
 }
@@ -89,15 +83,20 @@ type Report struct {
 	Rationales     *Rationales    `json:"rationales,omitempty"`
 }
 
-// Pairs evaluates a model on labelled pairs.
-func Pairs(m Model, items []Item, opts Options) (*Report, error) {
+// Pairs evaluates a model on labelled pairs, read as the Scorer reads them (benchmarks are scored
+// one way: nli.Scorer.OneWay).
+func Pairs(s *nli.Scorer, items []Item, opts Options) (*Report, error) {
 	pairs := make([]nli.Pair, len(items))
 	for i, it := range items {
 		pairs[i] = nli.Pair{Premise: it.Premise, Hypothesis: it.Hypothesis}
 	}
-	probs, err := m.Predict(pairs)
+	scored, err := s.Score(pairs)
 	if err != nil {
 		return nil, err
+	}
+	probs := make([]nli.Probs, len(scored))
+	for i, sc := range scored {
+		probs[i] = sc.Probs
 	}
 	truth := make([]int, len(items))
 	pred := make([]int, len(items))
@@ -121,7 +120,7 @@ func Pairs(m Model, items []Item, opts Options) (*Report, error) {
 	r.Classification = classification(metrics.NewConfusion(Labels, truth, pred), metrics.ECE(conf, correct, 10))
 	r.Contradiction = thresholds(isC, pc, opts.TargetPrecision)
 	if opts.Rationales {
-		ra, err := rationales(m, items, probs, opts)
+		ra, err := rationales(s, items, scored, opts)
 		if err != nil {
 			return nil, err
 		}
@@ -152,7 +151,7 @@ func thresholds(pos []bool, score []float64, target float64) Threshold {
 }
 
 // wordGold marks the words that overlap a gold range, punctuation-only words excepted.
-func wordGold(text string, words []nli.WordWeight, gold []profile.Span) []bool {
+func wordGold(text string, words []nli.WordWeight, gold []textpos.Range) []bool {
 	out := make([]bool, len(words))
 	for i, w := range words {
 		if onlyPunct(text[w.Start:w.End]) {
@@ -183,7 +182,7 @@ type method struct {
 	comp, suf float64
 }
 
-func rationales(m Model, items []Item, probs []nli.Probs, opts Options) (*Rationales, error) {
+func rationales(s *nli.Scorer, items []Item, scored []nli.Scored, opts Options) (*Rationales, error) {
 	var idx []int
 	for i, it := range items {
 		if it.Label == "contradiction" && len(it.Gold) > 0 {
@@ -191,8 +190,8 @@ func rationales(m Model, items []Item, probs []nli.Probs, opts Options) (*Ration
 		}
 	}
 	rule := opts.Spans
-	if rule == (profile.SpanRule{}) {
-		rule = profile.DefaultSpanRule
+	if rule == (gainsay.SpanRule{}) {
+		rule = gainsay.DefaultSpanRule
 	}
 	how := opts.Occlusion
 	if how == "" {
@@ -202,8 +201,8 @@ func rationales(m Model, items []Item, probs []nli.Probs, opts Options) (*Ration
 	methods := []*method{{name: "leave-one-out"}, {name: "not-in-premise"}, {name: "random"}}
 	for _, i := range idx {
 		it := items[i]
-		pair := nli.Pair{Premise: it.Premise, Hypothesis: it.Hypothesis}
-		attr, err := m.Attribute([]nli.Pair{pair}, how)
+		pair := scored[i].Pair
+		attr, err := s.Attribute(scored[i:i+1], how)
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", it.Source, err)
 		}
@@ -238,11 +237,11 @@ func rationales(m Model, items []Item, probs []nli.Probs, opts Options) (*Ration
 			}
 			masks = append(masks, without, only)
 		}
-		kept, err := m.ScoreKept(pair, masks)
+		kept, err := s.ScoreKept(pair, masks)
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", it.Source, err)
 		}
-		full := asSlice(probs[i])
+		full := asSlice(scored[i].Probs)
 		cls := argmax(full)
 		for mi, meth := range methods {
 			meth.instances = append(meth.instances, metrics.RationaleInstance{Gold: gold, Weight: weights[mi], Picked: picks[mi]})

@@ -1,4 +1,4 @@
-package profile
+package sentence
 
 import (
 	"bufio"
@@ -52,7 +52,7 @@ func TestUAX29Conformance(t *testing.T) {
 
 // Behaviour on top of UAX #29 (common practice, no published reference): abbreviations and initials do
 // not end sentences, decimals stay whole, white space is trimmed, line breaks always split.
-func TestSentences(t *testing.T) {
+func TestSplit(t *testing.T) {
 	cases := []struct {
 		text string
 		want []string
@@ -73,7 +73,7 @@ func TestSentences(t *testing.T) {
 	}
 	for _, c := range cases {
 		var got []string
-		for _, s := range Sentences(c.text) {
+		for _, s := range Split(c.text) {
 			got = append(got, c.text[s.Start:s.End])
 		}
 		assert.Equal(t, c.want, got, "%q", c.text)

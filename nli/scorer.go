@@ -1,0 +1,216 @@
+package nli
+
+import (
+	"fmt"
+
+	"github.com/gainsay/gainsay/tokenizer"
+)
+
+// Runner runs encoded pairs through a model. *Model is one; gainsay serve's batcher, which merges the
+// work of concurrent requests into shared ONNX Runtime runs, is another.
+type Runner interface {
+	PredictEncoded(encs []Encoding) ([]Probs, error)
+}
+
+// Scorer scores and attributes pairs with a model's tokenizer and a Runner.
+//
+// Unless OneWay, every pair is also read the other way round (hypothesis as premise) and counts as a
+// contradiction only as far as both readings agree: its probabilities are those of the reading with
+// the lower contradiction probability, and attribution weighs words by the drop in that smaller
+// probability. Contradiction is symmetric (if A contradicts B, B contradicts A), while a model that
+// sees one only one way round is usually reacting to the wording of one sentence alone, the
+// hypothesis-only artefacts of NLI data (Gururangan et al. 2018, "Annotation Artifacts in Natural
+// Language Inference Data"; Poliak et al. 2018, "Hypothesis Only Baselines in Natural Language
+// Inference"). Entailment is not symmetric, so benchmarks are scored OneWay.
+type Scorer struct {
+	Model *Model
+	// Runner runs the encodings (nil: Model itself).
+	Runner Runner
+	OneWay bool
+	// ReverseFrom, when above 0, reads the other way round only the pairs whose first reading reaches
+	// this contradiction probability: a pair below it cannot reach it as the smaller of two readings,
+	// so a verdict at that threshold is the same, for less work. The other pairs keep their first
+	// reading's probabilities.
+	ReverseFrom float64
+}
+
+// Scored is one pair as a Scorer read it, with what attribution reuses: the tokens of both texts and
+// the probabilities of the whole pair, so that no pair is tokenised or run twice.
+type Scored struct {
+	Pair Pair
+	// Probs are the probabilities that count: the reading with the lower contradiction probability
+	// where the pair was read both ways.
+	Probs Probs
+	// Forward is the reading premise then hypothesis; Reverse the other, when Reversed.
+	Forward, Reverse Probs
+	Reversed         bool
+	// Truncated: the pair was cut to the model's maximum length.
+	Truncated bool
+
+	premise, hypothesis []tokenizer.Piece
+}
+
+func (s *Scorer) runner() Runner {
+	if s.Runner != nil {
+		return s.Runner
+	}
+	return s.Model
+}
+
+// Score reads every pair, in order. Each distinct text is tokenised once per call (a fact meets every
+// sentence of a batch).
+func (s *Scorer) Score(pairs []Pair) ([]Scored, error) {
+	m := s.Model
+	cache := map[string][]tokenizer.Piece{}
+	tokenize := func(text string) ([]tokenizer.Piece, error) {
+		if p, ok := cache[text]; ok {
+			return p, nil
+		}
+		p, err := m.tok.Tokenize(text)
+		if err != nil {
+			return nil, err
+		}
+		cache[text] = p
+		return p, nil
+	}
+	out := make([]Scored, len(pairs))
+	encs := make([]Encoding, len(pairs))
+	for i, p := range pairs {
+		a, err := tokenize(p.Premise)
+		if err != nil {
+			return nil, fmt.Errorf("pair %d: premise: %w", i, err)
+		}
+		b, err := tokenize(p.Hypothesis)
+		if err != nil {
+			return nil, fmt.Errorf("pair %d: hypothesis: %w", i, err)
+		}
+		out[i] = Scored{Pair: p, premise: a, hypothesis: b}
+		encs[i] = assemble(m.tok, a, b, m.maxLen)
+		out[i].Truncated = encs[i].Truncated
+	}
+	probs, err := s.runner().PredictEncoded(encs)
+	if err != nil {
+		return nil, err
+	}
+	var again []int
+	for i := range out {
+		out[i].Forward, out[i].Probs = probs[i], probs[i]
+		if !s.OneWay && probs[i].Contradiction >= s.ReverseFrom {
+			again = append(again, i)
+		}
+	}
+	if len(again) == 0 {
+		return out, nil
+	}
+	rev := make([]Encoding, len(again))
+	for k, i := range again {
+		rev[k] = assemble(m.tok, out[i].hypothesis, out[i].premise, m.maxLen)
+	}
+	probs, err = s.runner().PredictEncoded(rev)
+	if err != nil {
+		return nil, err
+	}
+	for k, i := range again {
+		sc := &out[i]
+		sc.Reverse, sc.Reversed = probs[k], true
+		sc.Truncated = sc.Truncated || rev[k].Truncated
+		if sc.Reverse.Contradiction < sc.Probs.Contradiction {
+			sc.Probs = sc.Reverse
+		}
+	}
+	return out, nil
+}
+
+// occlusions is the attribution plan of one scored pair: the hypothesis words and, for each, the
+// encodings of the pair without it (forward, then reversed where the pair was read both ways).
+type occlusions struct {
+	words []word
+	encs  []Encoding
+}
+
+func (s *Scorer) occlusions(sc *Scored, how Occlusion) occlusions {
+	m := s.Model
+	ws := words(sc.Pair.Hypothesis, sc.hypothesis)
+	o := occlusions{words: ws, encs: make([]Encoding, 0, 2*len(ws))}
+	mask := m.tok.MaskID()
+	for k := range ws {
+		o.encs = append(o.encs, assemble(m.tok, sc.premise, without(sc.hypothesis, ws, k, k+1, how, mask), m.maxLen))
+	}
+	if sc.Reversed {
+		for k := range ws {
+			o.encs = append(o.encs, assemble(m.tok, without(sc.hypothesis, ws, k, k+1, how, mask), sc.premise, m.maxLen))
+		}
+	}
+	return o
+}
+
+// Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word is left
+// out in turn and the pair scored again, in each reading the pair was scored in. The whole pair's
+// probabilities come from Score. The variants of all pairs go to the Runner together, so they fill
+// batches.
+func (s *Scorer) Attribute(scored []Scored, how Occlusion) ([]Attribution, error) {
+	plans := make([]occlusions, len(scored))
+	var all []Encoding
+	for i := range scored {
+		plans[i] = s.occlusions(&scored[i], how)
+		all = append(all, plans[i].encs...)
+	}
+	probs, err := s.runner().PredictEncoded(all)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Attribution, len(scored))
+	at := 0
+	for i, o := range plans {
+		sc := scored[i]
+		n := len(o.words)
+		without := func(k int) float64 {
+			c := probs[at+k].Contradiction
+			if sc.Reversed {
+				c = min(c, probs[at+n+k].Contradiction)
+			}
+			return c
+		}
+		full := sc.Probs.Contradiction
+		a := Attribution{Contradiction: full, Words: make([]WordWeight, n), Truncated: sc.Truncated}
+		for k, w := range o.words {
+			a.Words[k] = WordWeight{Start: w.start, End: w.end, Weight: max(0, full-without(k))}
+		}
+		out[i] = a
+		at += len(o.encs)
+	}
+	return out, nil
+}
+
+// ScoreKept scores a pair once per mask, read one way: the hypothesis words (as attribution numbers
+// them) whose mask entry is true are kept, the others deleted. Evaluation uses it for the
+// comprehensiveness and sufficiency of a rationale.
+func (s *Scorer) ScoreKept(p Pair, keep [][]bool) ([]Probs, error) {
+	m := s.Model
+	prem, err := m.tok.Tokenize(p.Premise)
+	if err != nil {
+		return nil, err
+	}
+	hyp, err := m.tok.Tokenize(p.Hypothesis)
+	if err != nil {
+		return nil, err
+	}
+	ws := words(p.Hypothesis, hyp)
+	encs := make([]Encoding, len(keep))
+	for k, mask := range keep {
+		if len(mask) != len(ws) {
+			return nil, fmt.Errorf("mask %d has %d entries for %d words", k, len(mask), len(ws))
+		}
+		var variant []tokenizer.Piece
+		last := 0
+		for w, wd := range ws {
+			if mask[w] {
+				variant = append(variant, hyp[last:wd.last]...)
+			}
+			last = wd.last
+		}
+		variant = append(variant, hyp[last:]...) // pieces after the last word (spaces) stay
+		encs[k] = assemble(m.tok, prem, variant, m.maxLen)
+	}
+	return s.runner().PredictEncoded(encs)
+}
