@@ -7,6 +7,15 @@ The split follows shared/data/SOURCES.md and is the one the model card documents
 * MultiNLI (TaxiNLI subset): a row is held out when the first 8 hex digits of SHA-256(pairID), read as an
   integer, are divisible by 5 (about one fifth); the rest train.
 * Breaking NLI: the categories in BREAKING_HELD_OUT are held out, the others train.
+* DECODE (decode_pairs/contradiction_df.tsv): a pair is held out when the first 8 hex digits of
+  SHA-256(seg1 + TAB + seg2), read as an integer, are divisible by 5 (about one fifth). The ProSeCCo
+  rows of decode_prosecco_size_df.tsv (label 0 contradiction, every one of them also in
+  contradiction_df; label 1 a real non-contradicting pair from the same dialogues) follow the same rule.
+* Dialogue NLI over the BNC (dialogue_bnc_nli): train trains, dev calibrates, test is held out.
+* Counterfactual SNLI (cad_snli): train trains, dev calibrates; its test split is built from SNLI test
+  and is never used.
+* Persona pairs: scripts/train/persona_pairs.py writes train.jsonl and heldout.jsonl (whole attributes
+  and every fourth value held out; see that script).
 
 MultiNLI fields that the TaxiNLI file quotes twice are unquoted once more (unquote_twice).
 Rows labelled with anything but the three classes ('-' in SNLI: no annotator majority) are dropped.
@@ -101,6 +110,89 @@ def breaking(held_out: bool) -> list[Pair]:
     return out
 
 
+def decode_held_out(seg1: str, seg2: str) -> bool:
+    return int(hashlib.sha256((seg1 + "\t" + seg2).encode("utf-8")).hexdigest()[:8], 16) % 5 == 0
+
+
+def _tsv(path: str) -> list[dict]:
+    with open(path, encoding="utf-8", newline="") as f:
+        return list(csv.DictReader(f, delimiter="\t", quoting=csv.QUOTE_NONE))
+
+
+def decode(held_out: bool) -> list[Pair]:
+    """DECODE contradictions of one fold: the second utterance contradicts the first speaker's earlier one."""
+    rows = _tsv(os.path.join(data_dir(), "decode_pairs", "contradiction_df.tsv"))
+    out, seen = [], set()
+    for i, r in enumerate(rows, start=2):
+        a, b = r["seg1"].strip(), r["seg2"].strip()
+        if a and b and (a, b) not in seen and decode_held_out(a, b) == held_out:
+            seen.add((a, b))
+            out.append(Pair(a, b, "contradiction", f"decode:{i}"))
+    return out
+
+
+def decode_consistent(held_out: bool) -> list[Pair]:
+    """ProSeCCo's non-contradicting DECODE pairs (label 1) of one fold, labelled neutral."""
+    rows = _tsv(os.path.join(data_dir(), "decode_pairs", "decode_prosecco_size_df.tsv"))
+    return [Pair(r["seg1"].strip(), r["seg2"].strip(), "neutral", f"prosecco:{i}")
+            for i, r in enumerate(rows, start=2)
+            if r["label"] == "1" and decode_held_out(r["seg1"].strip(), r["seg2"].strip()) == held_out]
+
+
+def decode_unrelated(pairs: list[Pair]) -> list[Pair]:
+    """The first utterance of pair i with the second of pair i + n/2 (mod n): made non-contradictions,
+    labelled neutral (as `unrelated` does for SNLI)."""
+    n = len(pairs)
+    return [Pair(p.premise, pairs[(i + n // 2) % n].hypothesis, "neutral", f"decode-unrelated:{p.source}")
+            for i, p in enumerate(pairs) if pairs[(i + n // 2) % n].premise != p.premise]
+
+
+def dialogue_bnc(split: str) -> list[Pair]:
+    """Dialogue NLI over BNC excerpts; each line is premise TAB hypothesis TAB label (the CSV quoting
+    is not consistent, so lines are split on their last two tabs)."""
+    path = os.path.join(data_dir(), "dialogue_bnc_nli", f"{split}_5_data.csv")
+    out = []
+    with open(path, encoding="utf-8") as f:
+        for i, line in enumerate(f, start=1):
+            line = line.rstrip("\n")
+            if line.startswith('"') and line.endswith('"'):
+                line = line[1:-1].replace('""', '"')
+            parts = line.rsplit("\t", 2)
+            if len(parts) != 3:
+                continue
+            prem, hyp, lab = parts[0].strip(), parts[1].strip(), parts[2].strip().lower()
+            if lab in LABELS and prem and hyp:
+                out.append(Pair(prem, hyp, lab, f"bnc-{split}:{i}"))
+    return out
+
+
+def cad_snli(split: str) -> list[Pair]:
+    rows = _tsv(os.path.join(data_dir(), "cad_snli", f"all_combined_{split}.tsv"))
+    return [Pair(r["sentence1"].strip(), r["sentence2"].strip(), r["gold_label"], f"cad-{split}:{i}")
+            for i, r in enumerate(rows, start=2) if r["gold_label"] in LABELS]
+
+
+def med() -> list[Pair]:
+    rows = _tsv(os.path.join(data_dir(), "med", "MED.tsv"))
+    return [Pair(r["sentence1"].strip(), r["sentence2"].strip(), r["gold_label"], f"med:{r['index']}")
+            for r in rows if r["gold_label"] in LABELS]
+
+
+def persona(path: str) -> list[Pair]:
+    """Pairs written by persona_pairs.py (train.jsonl or heldout.jsonl)."""
+    out = []
+    with open(path, encoding="utf-8") as f:
+        for line in f:
+            d = json.loads(line)
+            out.append(Pair(d["premise"], d["hypothesis"], d["label"], d["source"]))
+    return out
+
+
+def calibration_pairs() -> list[Pair]:
+    """Never trained on: the dev splits of counterfactual SNLI and dialogue NLI, for the temperature."""
+    return cad_snli("dev") + dialogue_bnc("dev")
+
+
 def training_pairs() -> list[Pair]:
     dev_lines = range(ESNLI_ROWS + 1, 10**9)
     return snli("dev", dev_lines) + mnli(held_out=False) + breaking(held_out=False)
@@ -129,6 +221,20 @@ def held_out_sets() -> dict[str, list[Pair]]:
         "unrelated-snli-test": unrelated(test),
         "unrelated-mnli-held-out": unrelated(mnli(held_out=True)),
     }
+
+
+def persona_held_out_sets(persona_heldout: str | None = None) -> dict[str, list[Pair]]:
+    """The held-out sets of the persona-domain data (see the module doc)."""
+    dec = decode(held_out=True)
+    sets = {
+        "decode-held-out": dec,
+        "decode-held-out-unrelated": decode_unrelated(dec),
+        "decode-held-out-consistent": decode_consistent(held_out=True),
+        "dialogue-bnc-test": dialogue_bnc("test"),
+    }
+    if persona_heldout:
+        sets["persona-generated-held-out"] = persona(persona_heldout)
+    return sets
 
 
 if __name__ == "__main__":

