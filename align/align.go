@@ -1,5 +1,7 @@
 // Package align turns gainsay's penalty spans into per-token weights in a generator's own
-// tokenisation: what a token-level unlikelihood loss needs.
+// tokenisation: what a token-level unlikelihood loss needs. The reply is tokenised on its own, or
+// after its prompt (the text a chat template renders before it), as the training loop tokenises
+// the whole sequence; prompt tokens then get weight 0.
 //
 // Rule: a token's weight is the largest weight of the spans it overlaps, times the share of the
 // token's characters (code points, leading white space not counted; white space is the Unicode
@@ -27,31 +29,51 @@ type Tokens struct {
 	Score        gainsay.Prob   `json:"score"`
 	TokenIDs     []int          `json:"token_ids"`
 	Weights      []gainsay.Prob `json:"weights"`
-	// Offsets are code-point ranges of the reply text, one per token (Python str indexes).
+	// Offsets are code-point ranges of the tokenised text (the prompt and the reply, where there is a
+	// prompt), one per token (Python str indexes).
 	Offsets [][2]int `json:"offsets"`
-	Error   string   `json:"error,omitempty"`
+	// ReplyStart is where the reply starts in the tokenised text, in code points (0 without a prompt).
+	ReplyStart int    `json:"reply_start,omitempty"`
+	Error      string `json:"error,omitempty"`
 }
 
-// Record aligns one record: the reply text is tokenised on its own, without special tokens. With
-// normalize, the record's weights are divided by their largest, so that the strongest token weighs 1:
-// a confident model can blame the right word with a small drop in probability, and a training loop
-// may want the localisation rather than the size.
-func Record(rec *gainsay.Record, tok *tokenizer.Tokenizer, normalize bool) (Tokens, error) {
+// Options tune Record.
+type Options struct {
+	// Normalize divides the record's weights by their largest, so that the strongest token weighs 1:
+	// a confident model can blame the right word with a small drop in probability, and a training loop
+	// may want the localisation rather than the size.
+	Normalize bool
+	// Prompt is the text before the reply in the sequence the generator was trained on (a chat
+	// template's rendering up to the reply); "" tokenises the reply on its own.
+	Prompt string
+}
+
+// Record aligns one record. The text (prompt, then reply) is tokenised as the reference tokenizer
+// encodes it without special tokens of its own: added tokens written in the prompt, such as a chat
+// template's, are matched as added tokens.
+func Record(rec *gainsay.Record, tok *tokenizer.Tokenizer, opts Options) (Tokens, error) {
 	out := Tokens{ID: rec.ID, Verdict: rec.Verdict, SequenceFlag: rec.Verdict == gainsay.Contradiction,
 		Score: rec.Score, Error: rec.Error, TokenIDs: []int{}, Weights: []gainsay.Prob{}, Offsets: [][2]int{}}
-	pieces, err := tok.Tokenize(rec.Text)
+	text := opts.Prompt + rec.Text
+	pieces, err := tok.EncodeText(text)
 	if err != nil {
 		return out, err
 	}
 	var spans []gainsay.Span
+	shift := len(opts.Prompt)
 	for _, f := range rec.Findings {
-		spans = append(spans, f.Spans...)
+		for _, sp := range f.Spans {
+			sp.ByteStart += shift
+			sp.ByteEnd += shift
+			spans = append(spans, sp)
+		}
 	}
-	weights := Weights(rec.Text, pieces, spans)
-	if normalize {
+	weights := Weights(text, pieces, spans)
+	if opts.Normalize {
 		Normalize(weights)
 	}
-	idx := textpos.New(rec.Text)
+	idx := textpos.New(text)
+	out.ReplyStart = idx.Runes(shift)
 	for i, p := range pieces {
 		out.TokenIDs = append(out.TokenIDs, p.ID)
 		out.Weights = append(out.Weights, gainsay.Prob(weights[i]))

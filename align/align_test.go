@@ -1,8 +1,10 @@
 package align
 
 import (
+	"encoding/json"
 	"os"
 	"testing"
+	"unicode/utf8"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -12,11 +14,13 @@ import (
 	"github.com/gainsay/gainsay/tokenizer"
 )
 
-// Parity with the reference: for each tokenizer family, testdata/<family>.expected.jsonl holds the token
+// Parity with the reference: for each tokenizer layout, testdata/<family>.expected.jsonl holds the token
 // ids and offsets that the Hugging Face `tokenizers` package gives for each reply of
 // testdata/records.jsonl, and the weights that scripts/python/gainsay_train computes from them
-// (scripts/reference/align_reference.py). The replies are SNLI test, MultiNLI and Breaking NLI sentences
-// and stress strings (see tokenizer/testdata/parity/SOURCES.md); the tokenizers are nli's small trained ones.
+// (scripts/reference/align_reference.py); <family>.prompt.expected.jsonl the same for the replies that
+// carry a prompt, tokenised after it. The replies are SNLI test, MultiNLI and Breaking NLI sentences,
+// Synthetic-Persona-Chat and DECODE utterances, the demo's replies and stress strings (see
+// testdata/SOURCES.md); the tokenizers are the small ones scripts/reference/make_tokenizers.py trains.
 
 type expected struct {
 	ID       string    `json:"id"`
@@ -31,29 +35,52 @@ func TestAlignParity(t *testing.T) {
 	recs, err := gainsay.ReadAllRecords(f, "records.jsonl")
 	f.Close()
 	require.NoError(t, err)
-	for _, fam := range []string{"wordpiece", "bpe", "unigram"} {
+	// WordPiece, byte-level BPE, Unigram, and the chat-model layouts: Llama 3 and Qwen2 (regex Split
+	// before byte-level BPE), Llama 2 and Mistral (BPE with byte fallback).
+	for _, fam := range []string{"wordpiece", "bpe", "unigram", "splitbpe", "splitbpe-nfc", "spbpe", "metaspace-bpe"} {
 		t.Run(fam, func(t *testing.T) {
-			data, err := os.ReadFile("../tokenizer/testdata/tokenizers/" + fam + "/tokenizer.json")
-			require.NoError(t, err)
-			tok, err := tokenizer.Load(data)
+			tok, err := tokenizer.LoadFile("../tokenizer/testdata/tokenizers/" + fam + "/tokenizer.json")
 			require.NoError(t, err)
 			want, err := jsonl.ReadFile[expected]("testdata/" + fam + ".expected.jsonl")
 			require.NoError(t, err)
 			require.Len(t, want, len(recs))
 			for i := range recs {
-				got, err := Record(&recs[i], tok, false)
+				got, err := Record(&recs[i], tok, Options{})
 				require.NoError(t, err)
-				w := want[i]
-				require.Equal(t, w.ID, got.ID)
-				assert.Equal(t, w.TokenIDs, got.TokenIDs, "%s token ids", w.ID)
-				assert.Equal(t, w.Offsets, got.Offsets, "%s offsets", w.ID)
-				require.Len(t, got.Weights, len(w.Weights), w.ID)
-				for k := range w.Weights {
-					assert.InDelta(t, w.Weights[k], float64(got.Weights[k]), 1e-6, "%s token %d", w.ID, k)
-				}
+				compareAligned(t, want[i], got)
 				assert.Equal(t, recs[i].Verdict == gainsay.Contradiction, got.SequenceFlag)
 			}
+			// The same replies after a chat template's prompt, tokenised together.
+			prompted, err := jsonl.ReadFile[expected]("testdata/" + fam + ".prompt.expected.jsonl")
+			require.NoError(t, err)
+			k := 0
+			for i := range recs {
+				raw, ok := recs[i].Extra["prompt"]
+				if !ok {
+					continue
+				}
+				var prompt string
+				require.NoError(t, json.Unmarshal(raw, &prompt))
+				got, err := Record(&recs[i], tok, Options{Prompt: prompt})
+				require.NoError(t, err)
+				require.Less(t, k, len(prompted))
+				compareAligned(t, prompted[k], got)
+				assert.Equal(t, utf8.RuneCountInString(prompt), got.ReplyStart)
+				k++
+			}
+			assert.Equal(t, len(prompted), k)
 		})
+	}
+}
+
+func compareAligned(t *testing.T, w expected, got Tokens) {
+	t.Helper()
+	require.Equal(t, w.ID, got.ID)
+	assert.Equal(t, w.TokenIDs, got.TokenIDs, "%s token ids", w.ID)
+	assert.Equal(t, w.Offsets, got.Offsets, "%s offsets", w.ID)
+	require.Len(t, got.Weights, len(w.Weights), w.ID)
+	for k := range w.Weights {
+		assert.InDelta(t, w.Weights[k], float64(got.Weights[k]), 1e-6, "%s token %d", w.ID, k)
 	}
 }
 

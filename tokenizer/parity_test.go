@@ -57,7 +57,12 @@ func TestTokenizerParity(t *testing.T) {
 		"wordpiece": "testdata/tokenizers/wordpiece/tokenizer.json",
 		"bpe":       "testdata/tokenizers/bpe/tokenizer.json",
 		"unigram":   "testdata/tokenizers/unigram/tokenizer.json",
-		"builtin":   "../models/builtin/tokenizer.json",
+		// Today's chat-model layouts (scripts/reference/make_tokenizers.py): Llama 3, Qwen2, Llama 2, Mistral.
+		"splitbpe":      "testdata/tokenizers/splitbpe/tokenizer.json",
+		"splitbpe-nfc":  "testdata/tokenizers/splitbpe-nfc/tokenizer.json",
+		"spbpe":         "testdata/tokenizers/spbpe/tokenizer.json",
+		"metaspace-bpe": "testdata/tokenizers/metaspace-bpe/tokenizer.json",
+		"builtin":       "../models/builtin/tokenizer.json",
 	}
 	for name, path := range families {
 		t.Run(name, func(t *testing.T) {

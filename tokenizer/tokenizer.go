@@ -3,7 +3,10 @@ package tokenizer
 import (
 	"fmt"
 	"os"
+	"slices"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 )
 
 // Family names the layout of a tokenizer.json, as far as it changes offsets and special tokens.
@@ -47,9 +50,12 @@ type Tokenizer struct {
 	dec    decoder
 	tokens []string       // by id: the vocabulary and the added tokens
 	added  map[string]int // added tokens by content
-	unk    int
-	pad    int
-	mask   int
+	// literal are the added tokens that the reference matches in the text before normalising
+	// (normalized false), longest first.
+	literal []addedToken
+	unk     int
+	pad     int
+	mask    int
 }
 
 // LoadFile reads a tokenizer.json file.
@@ -106,8 +112,12 @@ func Load(data []byte) (*Tokenizer, error) {
 		if a.Content != "" && a.ID >= 0 {
 			t.added[a.Content] = a.ID
 			t.tokens[a.ID] = a.Content
+			if !a.Normalized {
+				t.literal = append(t.literal, a)
+			}
 		}
 	}
+	slices.SortStableFunc(t.literal, func(a, b addedToken) int { return len(b.Content) - len(a.Content) })
 	find := func(names ...string) int {
 		for _, n := range names {
 			if id, ok := t.added[n]; ok {
@@ -150,20 +160,108 @@ func (t *Tokenizer) Token(id int) string {
 	return t.tokens[id]
 }
 
-// Tokenize splits text into pieces with byte offsets into text, without special tokens.
+// Tokenize splits text into pieces with byte offsets into text, without special tokens. Added tokens
+// written in the text are encoded as text: a reply cannot inject a separator into a model input.
 func (t *Tokenizer) Tokenize(s string) ([]Piece, error) {
-	if s == "" {
-		return nil, nil
+	pieces, err := t.tokenizeRange(s, 0, len(s), nil)
+	if err != nil {
+		return nil, err
 	}
-	norm, err := t.norm.normalize(newText(s))
+	t.post.trimOffsets(pieces, t.Token)
+	return pieces, nil
+}
+
+// EncodeText tokenises text as the reference's encode(text, add_special_tokens=False) does: added
+// tokens written in the text (those the reference matches before normalising) become their own ids,
+// with lstrip, rstrip and single_word as the file says, and each stretch between them is normalised
+// and pre-tokenised on its own. It is how a generator's training loop tokenises a prompt rendered by
+// a chat template.
+func (t *Tokenizer) EncodeText(s string) ([]Piece, error) {
+	var pieces []Piece
+	var err error
+	last := 0
+	for _, m := range t.matchAdded(s) {
+		if pieces, err = t.tokenizeRange(s, last, m.start, pieces); err != nil {
+			return nil, err
+		}
+		pieces = append(pieces, Piece{ID: m.id, Start: m.start, End: m.end})
+		last = m.end
+	}
+	if pieces, err = t.tokenizeRange(s, last, len(s), pieces); err != nil {
+		return nil, err
+	}
+	t.post.trimOffsets(pieces, t.Token)
+	return pieces, nil
+}
+
+type addedMatch struct{ id, start, end int }
+
+// matchAdded finds the added tokens in s, leftmost first and longest at a position, as the
+// reference's AddedVocabulary does.
+func (t *Tokenizer) matchAdded(s string) []addedMatch {
+	if len(t.literal) == 0 {
+		return nil
+	}
+	var out []addedMatch
+	done := 0 // bytes before this belong to an earlier match
+	for i := 0; i < len(s); {
+		var hit *addedToken
+		for k := range t.literal {
+			if strings.HasPrefix(s[i:], t.literal[k].Content) {
+				hit = &t.literal[k]
+				break // longest first
+			}
+		}
+		if hit == nil {
+			i++
+			continue
+		}
+		start, end := i, i+len(hit.Content)
+		if hit.SingleWord && (endsWithWord(s[:start]) || startsWithWord(s[end:])) {
+			i++
+			continue
+		}
+		if hit.LStrip {
+			start = max(done, len(strings.TrimRightFunc(s[:start], unicode.IsSpace)))
+		}
+		if hit.RStrip {
+			end = len(s) - len(strings.TrimLeftFunc(s[end:], unicode.IsSpace))
+		}
+		out = append(out, addedMatch{hit.ID, start, end})
+		done, i = end, end
+	}
+	return out
+}
+
+func endsWithWord(s string) bool {
+	r, n := utf8.DecodeLastRuneInString(s)
+	return n > 0 && isWordChar(r)
+}
+
+func startsWithWord(s string) bool {
+	r, n := utf8.DecodeRuneInString(s)
+	return n > 0 && isWordChar(r)
+}
+
+// tokenizeRange normalises, pre-tokenises and tokenises s[from:to], appending pieces whose offsets
+// are bytes of s.
+func (t *Tokenizer) tokenizeRange(s string, from, to int, pieces []Piece) ([]Piece, error) {
+	if from >= to {
+		return pieces, nil
+	}
+	orig := newText(s[from:to])
+	for i := range orig {
+		orig[i].start += from
+		orig[i].end += from
+	}
+	norm, err := t.norm.normalize(orig)
 	if err != nil {
 		return nil, fmt.Errorf("normalizer: %w", err)
 	}
-	segs, err := t.pre.preTokenize([]segment{{t: norm, whole: true}})
+	segs, err := t.pre.preTokenize([]segment{{t: norm, whole: from == 0}})
 	if err != nil {
 		return nil, fmt.Errorf("pre_tokenizer: %w", err)
 	}
-	var pieces []Piece
 	for _, seg := range segs {
 		if len(seg.t) == 0 {
 			continue
@@ -182,7 +280,6 @@ func (t *Tokenizer) Tokenize(s string) ([]Piece, error) {
 			pieces = append(pieces, Piece{ID: tk.id, Start: start, End: end})
 		}
 	}
-	t.post.trimOffsets(pieces, t.Token)
 	return pieces, nil
 }
 

@@ -12,6 +12,23 @@ for the public models:
 * unigram/    DeBERTa-v3 layout (DebertaV2TokenizerFast converted from a SentencePiece unigram model):
               Precompiled normaliser, Metaspace, [CLS] A [SEP] B [SEP].
 
+and, for `gainsay align`, the layouts of today's chat-model generators:
+
+* splitbpe/       Llama 3 layout: a regex Split pre-tokenizer with look-ahead (the GPT-4-style
+                  pattern), then ByteLevel without its own regex, BPE with ignore_merges, a
+                  <|begin_of_text|> template and ByteLevel offsets left untrimmed.
+* splitbpe-nfc/   Qwen2 layout: NFC normaliser, the same kind of Split (single digits), BPE without
+                  ignore_merges, no special tokens around sequences.
+* spbpe/          Llama 2 layout (legacy SentencePiece conversion): Prepend("▁") and Replace(" ", "▁")
+                  normalisers, no pre-tokenizer, BPE with byte_fallback and fuse_unk, <s> template,
+                  the Replace/ByteFallback/Fuse/Strip decoder.
+* metaspace-bpe/  Mistral layout (non-legacy conversion): Metaspace with prepend_scheme "first" and
+                  split false, BPE with byte_fallback.
+
+The BPE ones learn merges with a pre-tokenizer that keeps merges inside words, as SentencePiece does,
+and are saved with the layout above; their alphabets are limited so that rare characters fall back to
+byte tokens.
+
 It also writes tokenizer/testdata/parity/pairs.jsonl: premise/hypothesis pairs from SNLI test, MultiNLI (every
 row with non-ASCII text first) and Breaking NLI, plus a few strings chosen to stress normalisation.
 
@@ -131,6 +148,112 @@ def make_unigram(lines, tmp):
     return DebertaV2Converter(Original()).converted()
 
 
+LLAMA3_PATTERN = (r"(?i:'s|'t|'re|'ve|'m|'ll|'d)|[^\r\n\p{L}\p{N}]?\p{L}+|\p{N}{1,3}| ?[^\s\p{L}\p{N}]+[\r\n]*"
+                  r"|\s*[\r\n]+|\s+(?!\S)|\s+")
+QWEN2_PATTERN = (r"(?i:'s|'t|'re|'ve|'m|'ll|'d)|[^\r\n\p{L}\p{N}]?\p{L}+|\p{N}| ?[^\s\p{L}\p{N}]+[\r\n]*"
+                 r"|\s*[\r\n]+|\s+(?!\S)|\s+")
+
+
+def _byte_level_bpe(lines, pattern, specials, ignore_merges):
+    from tokenizers import Regex, Tokenizer, models, pre_tokenizers, trainers
+
+    tk = Tokenizer(models.BPE(ignore_merges=ignore_merges))
+    tk.pre_tokenizer = pre_tokenizers.Sequence([
+        pre_tokenizers.Split(Regex(pattern), behavior="isolated", invert=False),
+        pre_tokenizers.ByteLevel(add_prefix_space=False, trim_offsets=True, use_regex=False),
+    ])
+    tk.train_from_iterator(lines, trainers.BpeTrainer(
+        vocab_size=VOCAB, min_frequency=2, special_tokens=specials,
+        initial_alphabet=pre_tokenizers.ByteLevel.alphabet(), show_progress=False))
+    return tk
+
+
+def make_splitbpe(lines, tmp):
+    """Llama 3's tokenizer.json layout."""
+    from tokenizers import decoders, processors
+
+    tk = _byte_level_bpe(lines, LLAMA3_PATTERN, ["<|begin_of_text|>", "<|end_of_text|>", "<|eot_id|>"], True)
+    bos = tk.token_to_id("<|begin_of_text|>")
+    tk.post_processor = processors.Sequence([
+        processors.ByteLevel(trim_offsets=False),
+        processors.TemplateProcessing(single="<|begin_of_text|> $A", pair="<|begin_of_text|> $A <|begin_of_text|>:1 $B:1",
+                                      special_tokens=[("<|begin_of_text|>", bos)]),
+    ])
+    tk.decoder = decoders.ByteLevel()
+    return tk
+
+
+def make_splitbpe_nfc(lines, tmp):
+    """Qwen2's tokenizer.json layout."""
+    from tokenizers import decoders, normalizers, processors
+
+    tk = _byte_level_bpe(lines, QWEN2_PATTERN, ["<|endoftext|>", "<|im_start|>", "<|im_end|>"], False)
+    tk.normalizer = normalizers.NFC()
+    tk.post_processor = processors.ByteLevel(trim_offsets=False)
+    tk.decoder = decoders.ByteLevel()
+    return tk
+
+
+BYTE_TOKENS = [f"<0x{b:02X}>" for b in range(256)]
+
+
+def _sentencepiece_bpe(lines):
+    """BPE over Metaspace words (merges never cross a word start), with the 256 byte tokens in the
+    vocabulary as SentencePiece's byte_fallback puts them, after <unk>, <s>, </s>."""
+    from tokenizers import Tokenizer, models, pre_tokenizers, trainers
+
+    tk = Tokenizer(models.BPE(unk_token="<unk>", byte_fallback=True, fuse_unk=True))
+    tk.pre_tokenizer = pre_tokenizers.Metaspace(replacement="▁", prepend_scheme="always", split=True)
+    tk.train_from_iterator(lines, trainers.BpeTrainer(
+        vocab_size=VOCAB, min_frequency=2, special_tokens=["<unk>", "<s>", "</s>"] + BYTE_TOKENS,
+        limit_alphabet=90, show_progress=False))
+    return tk
+
+
+def _bytes_as_vocabulary(tk):
+    """The byte tokens stay in the model's vocabulary but are not added tokens (as in Llama 2's file)."""
+    from tokenizers import Tokenizer
+
+    cfg = json.loads(tk.to_str())
+    cfg["added_tokens"] = [a for a in cfg["added_tokens"] if a["content"] not in BYTE_TOKENS]
+    return Tokenizer.from_str(json.dumps(cfg))
+
+
+def make_spbpe(lines, tmp):
+    """Llama 2's tokenizer.json layout (LlamaTokenizerFast, legacy conversion)."""
+    from tokenizers import Regex, decoders, normalizers, processors
+
+    tk = _sentencepiece_bpe(lines)
+    tk.normalizer = normalizers.Sequence([normalizers.Prepend("▁"), normalizers.Replace(" ", "▁")])
+    tk.pre_tokenizer = None
+    bos = tk.token_to_id("<s>")
+    tk.post_processor = processors.TemplateProcessing(single="<s> $A", pair="<s> $A <s>:1 $B:1",
+                                                      special_tokens=[("<s>", bos)])
+    tk.decoder = decoders.Sequence([decoders.Replace("▁", " "), decoders.ByteFallback(), decoders.Fuse(),
+                                    decoders.Strip(content=" ", left=1, right=0)])
+    return _bytes_as_vocabulary(tk)
+
+
+def make_metaspace_bpe(lines, tmp):
+    """Mistral's tokenizer.json layout (non-legacy conversion): Metaspace, prepend_scheme first."""
+    from tokenizers import decoders, pre_tokenizers, processors
+
+    tk = _sentencepiece_bpe(lines)
+    tk.normalizer = None
+    tk.pre_tokenizer = pre_tokenizers.Metaspace(replacement="▁", prepend_scheme="first", split=False)
+    bos = tk.token_to_id("<s>")
+    tk.post_processor = processors.TemplateProcessing(single="<s> $A", pair="<s> $A <s>:1 $B:1",
+                                                      special_tokens=[("<s>", bos)])
+    tk.decoder = decoders.Sequence([decoders.Metaspace(replacement="▁", prepend_scheme="first", split=False),
+                                    decoders.ByteFallback(), decoders.Fuse()])
+    return _bytes_as_vocabulary(tk)
+
+
+MAKERS = {"wordpiece": "make_wordpiece", "bpe": "make_bpe", "unigram": "make_unigram",
+          "splitbpe": "make_splitbpe", "splitbpe-nfc": "make_splitbpe_nfc", "spbpe": "make_spbpe",
+          "metaspace-bpe": "make_metaspace_bpe"}
+
+
 def write_parity_pairs():
     pairs = []
     for p in nli_data.snli("test")[:150]:
@@ -150,18 +273,26 @@ def write_parity_pairs():
 
 
 def main():
+    import argparse
+
     import sentencepiece as spm
 
+    ap = argparse.ArgumentParser()
+    ap.add_argument("families", nargs="*", help=f"which to (re)make (default: all of {sorted(MAKERS)})")
+    ap.add_argument("--no-pairs", action="store_true", help="leave the parity pairs as they are")
+    args = ap.parse_args()
     spm.set_random_generator_seed(7)
     lines = corpus_lines()
-    for name, make in (("wordpiece", make_wordpiece), ("bpe", make_bpe), ("unigram", make_unigram)):
+    for name in args.families or MAKERS:
+        make = globals()[MAKERS[name]]
         with tempfile.TemporaryDirectory() as tmp:
             tk = make(lines, tmp)
             d = os.path.join(OUT, name)
             os.makedirs(d, exist_ok=True)
             tk.save(os.path.join(d, "tokenizer.json"))
             print(name, tk.get_vocab_size(), "tokens ->", d)
-    write_parity_pairs()
+    if not args.no_pairs:
+        write_parity_pairs()
 
 
 if __name__ == "__main__":

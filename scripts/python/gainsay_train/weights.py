@@ -46,12 +46,26 @@ def _encode(tokenizer, text: str):
     return list(enc["input_ids"]), [tuple(o) for o in enc["offset_mapping"]]
 
 
-def token_weights(record: dict, tokenizer, normalize: bool = False) -> tuple[list[int], list[float], list[tuple[int, int]]]:
-    """Token ids of the record's reply text, the penalty weight of each, and their offsets. With
-    normalize, weights are divided by their largest (as `gainsay align --normalize`)."""
-    text = record.get("text", "")
-    ids, offsets = _encode(tokenizer, text)
-    weights = weights_from_offsets(text, offsets, spans_of(record))
+def token_weights(record: dict, tokenizer, normalize: bool = False, prompt: str | None = None,
+                  full_text: str | None = None, reply_start: int | None = None,
+                  ) -> tuple[list[int], list[float], list[tuple[int, int]]]:
+    """Token ids, the penalty weight of each and their offsets (code points) for the record's reply.
+
+    Tokenised on its own by default. A training loop that tokenises the prompt and the reply together
+    (a chat template) gives either prompt, the text before the reply (the sequence is prompt + reply
+    text, as `gainsay align --prompt-field`), or full_text and reply_start, the whole sequence and the
+    code-point offset where the reply text starts in it. The spans move with the reply; prompt tokens
+    get 0. With normalize, weights are divided by their largest (as `gainsay align --normalize`)."""
+    reply = record.get("text", "")
+    if prompt is not None:
+        full_text, reply_start = prompt + reply, len(prompt)
+    if full_text is None:
+        full_text, reply_start = reply, 0
+    elif full_text[reply_start:reply_start + len(reply)] != reply:
+        raise ValueError(f"record {record.get('id')!r}: the reply text is not at offset {reply_start} of the full text")
+    ids, offsets = _encode(tokenizer, full_text)
+    spans = [dict(s, start=s["start"] + reply_start, end=s["end"] + reply_start) for s in spans_of(record)]
+    weights = weights_from_offsets(full_text, offsets, spans)
     top = max(weights, default=0.0)
     if normalize and top > 0:
         weights = [w / top for w in weights]
