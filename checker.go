@@ -7,42 +7,15 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"sync"
 	"time"
 
 	"github.com/gainsay/gainsay/internal/sentence"
 	"github.com/gainsay/gainsay/internal/textpos"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
+	"github.com/gainsay/gainsay/relevance"
 )
-
-// SpanRule says which attributed words become penalty spans: a word whose weight is at least MinWeight
-// and at least Relative times the pair's largest word weight.
-type SpanRule struct {
-	MinWeight float64
-	Relative  float64
-}
-
-// Culprits marks the words the rule keeps, given every word's weight.
-func (r SpanRule) Culprits(weights []float64) []bool {
-	top := 0.0
-	for _, w := range weights {
-		top = max(top, w)
-	}
-	out := make([]bool, len(weights))
-	if top == 0 || top < r.MinWeight {
-		return out
-	}
-	for i, w := range weights {
-		out[i] = w >= r.MinWeight && w >= r.Relative*top
-	}
-	return out
-}
-
-// DefaultSpanRule keeps words that carry at least half of the strongest word's effect. The floor only
-// excludes words that change nothing measurable: a confident model barely moves when one word goes
-// (against "My boat is made of wood", "My boat is made of steel" scores 0.9994, and 0.9946 without
-// "steel"), yet that word is the one to blame, so the relative rule does the selecting.
-var DefaultSpanRule = SpanRule{MinWeight: 0.001, Relative: 0.5}
 
 // DefaultThreshold is the contradiction probability at which a pair is flagged.
 const DefaultThreshold = 0.5
@@ -52,22 +25,50 @@ type Options struct {
 	Threshold float64       // 0: DefaultThreshold
 	Occlusion nli.Occlusion // "": nli.Delete
 	Spans     SpanRule      // zero: DefaultSpanRule
+	// Relevance is the least cosine similarity of fact and sentence embeddings for the pair to be
+	// read by the NLI model (0: every pair is read); it needs the Checker's Embedder.
+	Relevance float64
+	// RelevanceTop, when above 0, reads at most this many facts per sentence, the most similar ones
+	// above Relevance, so that cost follows the facts a sentence is about rather than the profile size.
+	RelevanceTop int
 	// Model names the model in every record (e.g. "builtin@1a2b3c4d").
 	Model string
 }
 
+// Embedder embeds texts as unit vectors (a dot product is a cosine); *relevance.Embedder is one.
+type Embedder interface {
+	Embed(texts []string) ([][]float32, error)
+}
+
 // Checker scores replies against a profile and turns contradictions into penalty spans. It is safe
-// for concurrent use when its Scorer's Runner is.
+// for concurrent use when its Scorer's Runner and its Embedder are.
+//
+// Pairs read both ways (the Scorer's default) are read the second way only where the first reading
+// reaches the threshold: the smaller of two readings cannot reach it otherwise, so verdicts are those
+// of reading every pair both ways, for about half the work. A pair's probabilities, and so a reply's
+// score, are then the smaller reading's for pairs that reach the threshold the first way and the first
+// reading's for the others (always below the threshold).
 type Checker struct {
 	Scorer *nli.Scorer
+	// Embedder, with Options.Relevance, skips pairs about different things (nil: none skipped).
+	Embedder Embedder
 	Options
+
+	mu    sync.Mutex // guards facts
+	facts factVectors
+}
+
+// factVectors are the embeddings of one profile's facts, made once per profile.
+type factVectors struct {
+	profile *profile.Profile
+	vecs    [][]float32
 }
 
 // Stats summarise a run.
 type Stats struct {
 	Replies, Contradictions, Errors int
-	// Pairs scored and pairs attributed (at or above the threshold).
-	Pairs, Attributed int
+	// Pairs scored, pairs skipped by the relevance gate, and pairs attributed (at or above the threshold).
+	Pairs, Skipped, Attributed int
 	Elapsed           time.Duration
 }
 
@@ -80,7 +81,7 @@ func (c *Checker) threshold() float64 {
 
 func (c *Checker) spanRule() SpanRule {
 	if c.Spans == (SpanRule{}) {
-		return DefaultSpanRule
+		return DefaultSpanRule()
 	}
 	return c.Spans
 }
@@ -115,6 +116,7 @@ func (c *Checker) Check(p *profile.Profile, replies []Reply) ([]Record, Stats) {
 			}
 			recs[i] = one[0]
 			st.Pairs += s1.Pairs
+			st.Skipped += s1.Skipped
 			st.Attributed += s1.Attributed
 		}
 	}
@@ -136,6 +138,11 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 	recs := make([]Record, len(replies))
 	var refs []pairRef
 	var pairs []nli.Pair
+	type sent struct {
+		reply int
+		at    textpos.Range
+	}
+	var sents []sent
 	for i, r := range replies {
 		recs[i] = Record{ID: r.ID, Text: r.Text, Context: r.Context, Line: r.Line, Model: c.Model,
 			Threshold: Prob(c.threshold()), Extra: r.Extra, Verdict: Consistent}
@@ -143,19 +150,36 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 			recs[i].Verdict, recs[i].Error = Failed, r.Err.Error()
 			continue
 		}
-		sentences := sentence.Split(r.Text)
-		for fi, f := range p.Facts {
-			for _, s := range sentences {
-				refs = append(refs, pairRef{i, fi, s})
-				pairs = append(pairs, nli.Pair{Premise: f.Text, Hypothesis: r.Text[s.Start:s.End]})
+		for _, s := range sentence.Split(r.Text) {
+			sents = append(sents, sent{i, s})
+		}
+	}
+	keep, err := c.relevant(p, len(sents), func(k int) string {
+		return replies[sents[k].reply].Text[sents[k].at.Start:sents[k].at.End]
+	})
+	if err != nil {
+		return nil, st, fmt.Errorf("relevance: %w", err)
+	}
+	for fi, f := range p.Facts {
+		for k, s := range sents {
+			if keep != nil && !keep[k][fi] {
+				recs[s.reply].SkippedPairs++
+				st.Skipped++
+				continue
 			}
+			refs = append(refs, pairRef{s.reply, fi, s.at})
+			pairs = append(pairs, nli.Pair{Premise: f.Text, Hypothesis: replies[s.reply].Text[s.at.Start:s.at.End]})
 		}
 	}
 	st.Pairs = len(pairs)
 	if len(pairs) == 0 {
 		return recs, st, nil
 	}
-	scored, err := c.Scorer.Score(pairs)
+	scorer := *c.Scorer
+	if !scorer.OneWay && scorer.ReverseFrom == 0 {
+		scorer.ReverseFrom = c.threshold()
+	}
+	scored, err := scorer.Score(pairs)
 	if err != nil {
 		return nil, st, fmt.Errorf("scoring: %w", err)
 	}
@@ -173,11 +197,8 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 		for j, k := range flagged {
 			fp[j] = scored[k]
 		}
-		how := c.Occlusion
-		if how == "" {
-			how = nli.Delete
-		}
-		attrs, err := c.Scorer.Attribute(fp, how)
+		rule := c.spanRule()
+		attrs, err := scorer.Attribute(fp, nli.AttributionOptions{Occlusion: c.Occlusion, Phrases: rule.Phrases})
 		if err != nil {
 			return nil, st, fmt.Errorf("attribution: %w", err)
 		}
@@ -201,7 +222,7 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 					Text: rec.Text[ref.sent.Start:ref.sent.End],
 				},
 				Probs:     ProbsOf(scored[k].Probs),
-				Spans:     penaltySpans(rec.Text, idx, ref.sent.Start, attrs[j].Words, c.spanRule()),
+				Spans:     rule.spans(rec.Text, idx, ref.sent.Start, attrs[j]),
 				Truncated: attrs[j].Truncated,
 				order:     ref.fact,
 			})
@@ -216,40 +237,59 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 	return recs, st, nil
 }
 
-// penaltySpans turns word weights of one sentence (offsets relative to the sentence at byte offset
-// base of text) into merged spans over text, heaviest first.
-func penaltySpans(text string, idx textpos.Index, base int, words []nli.WordWeight, rule SpanRule) []Span {
-	weights := make([]float64, len(words))
-	for i, w := range words {
-		weights[i] = w.Weight
+// relevant says, for each of n sentences, which facts of p it is about: keep[k][f] for sentence k
+// and fact f (nil: all of them, when there is no gate).
+func (c *Checker) relevant(p *profile.Profile, n int, text func(k int) string) ([][]bool, error) {
+	if c.Embedder == nil || c.Relevance <= 0 || n == 0 {
+		return nil, nil
 	}
-	culprits := rule.Culprits(weights)
-	var spans []Span
-	open := false
-	for i, w := range words {
-		if !culprits[i] {
-			open = false
-			continue
+	facts, err := c.factVectors(p)
+	if err != nil {
+		return nil, err
+	}
+	texts := make([]string, n)
+	for k := range texts {
+		texts[k] = text(k)
+	}
+	vecs, err := c.Embedder.Embed(texts)
+	if err != nil {
+		return nil, err
+	}
+	keep := make([][]bool, n)
+	sims := make([]float64, len(facts))
+	order := make([]int, len(facts))
+	for k, v := range vecs {
+		keep[k] = make([]bool, len(facts))
+		for f, fv := range facts {
+			sims[f], order[f] = relevance.Cosine(v, fv), f
 		}
-		s, e := base+w.Start, base+w.End
-		if open {
-			last := &spans[len(spans)-1]
-			last.ByteEnd = e
-			last.Weight = max(last.Weight, Prob(w.Weight))
-			continue
+		// The most similar facts first; equal ones in profile order.
+		slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(sims[b], sims[a]) })
+		for rank, f := range order {
+			if sims[f] >= c.Relevance && (c.RelevanceTop <= 0 || rank < c.RelevanceTop) {
+				keep[k][f] = true
+			}
 		}
-		spans = append(spans, Span{ByteStart: s, ByteEnd: e, Weight: Prob(w.Weight)})
-		open = true
 	}
-	for i := range spans {
-		sp := &spans[i]
-		sp.Start, sp.End = idx.Runes(sp.ByteStart), idx.Runes(sp.ByteEnd)
-		sp.Text = text[sp.ByteStart:sp.ByteEnd]
+	return keep, nil
+}
+
+func (c *Checker) factVectors(p *profile.Profile) ([][]float32, error) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.facts.profile == p {
+		return c.facts.vecs, nil
 	}
-	slices.SortStableFunc(spans, func(a, b Span) int {
-		return cmp.Or(cmp.Compare(b.Weight, a.Weight), cmp.Compare(a.Start, b.Start))
-	})
-	return spans
+	texts := make([]string, len(p.Facts))
+	for i, f := range p.Facts {
+		texts[i] = f.Text
+	}
+	vecs, err := c.Embedder.Embed(texts)
+	if err != nil {
+		return nil, err
+	}
+	c.facts = factVectors{p, vecs}
+	return vecs, nil
 }
 
 // RunOptions tune Run.
@@ -284,6 +324,7 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 		total.Contradictions += st.Contradictions
 		total.Errors += st.Errors
 		total.Pairs += st.Pairs
+		total.Skipped += st.Skipped
 		total.Attributed += st.Attributed
 		batch = batch[:0]
 		if opts.Progress != nil {

@@ -63,7 +63,8 @@ func TestCheckWithTinyModel(t *testing.T) {
 	assert.Equal(t, SentenceRef{Start: 21, End: 47, ByteStart: 22, ByteEnd: 48, Text: "I have never seen the sea."}, f.Sentence)
 	require.Len(t, f.Spans, 1)
 	assert.Equal(t, Span{Start: 28, End: 33, ByteStart: 29, ByteEnd: 34, Text: "never", Weight: f.Spans[0].Weight}, f.Spans[0])
-	assert.InDelta(t, high-low, float64(f.Spans[0].Weight), 1e-6)
+	oddsOf := func(p float64) float64 { return p / (1 - p) }
+	assert.InDelta(t, 1-oddsOf(low)/oddsOf(high), float64(f.Spans[0].Weight), 1e-6, "the share of the odds that goes with the word")
 	assert.Equal(t, []rune(r1.Text)[28:33], []rune("never"), "code-point offsets index the text as Python does")
 
 	assert.Equal(t, Consistent, recs[1].Verdict)
@@ -90,15 +91,62 @@ func TestThresholdAndSpanRule(t *testing.T) {
 
 func TestSpansMergeAdjacent(t *testing.T) {
 	text := "We never ever sail. Ok"
-	words := []nli.WordWeight{{Start: 0, End: 2, Weight: 0.0}, {Start: 3, End: 8, Weight: 0.6}, {Start: 9, End: 13, Weight: 0.4}, {Start: 14, End: 18, Weight: 0.01}, {Start: 18, End: 19, Weight: 0.29}}
-	got := penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
+	// Probability drops as weights: the contradiction probability is 0.9 and falls by the weight
+	// without each word.
+	attr := func(drops ...float64) nli.Attribution {
+		bounds := [][2]int{{0, 2}, {3, 8}, {9, 13}, {14, 18}, {18, 19}}
+		a := nli.Attribution{Contradiction: 0.9}
+		for i, d := range drops {
+			a.Words = append(a.Words, nli.WordWeight{Start: bounds[i][0], End: bounds[i][1], Without: 0.9 - d, Weight: d})
+		}
+		return a
+	}
+	rule := SpanRule{MinWeight: 0.001, Relative: 0.5, Measure: ProbDrop, FunctionWords: true}
+	got := rule.spans(text, textposIndex(text), 0, attr(0, 0.6, 0.4, 0.01, 0.29))
 	require.Len(t, got, 1)
 	assert.Equal(t, Span{Start: 3, End: 13, ByteStart: 3, ByteEnd: 13, Text: "never ever", Weight: 0.6}, got[0])
 
-	words = []nli.WordWeight{{Start: 0, End: 2, Weight: 0.5}, {Start: 3, End: 8, Weight: 0.0}, {Start: 9, End: 13, Weight: 0.9}}
-	got = penaltySpans(text, textposIndex(text), 0, words, DefaultSpanRule)
+	got = rule.spans(text, textposIndex(text), 0, attr(0.5, 0, 0.9))
 	require.Len(t, got, 2)
 	assert.Equal(t, []string{"ever", "We"}, []string{got[0].Text, got[1].Text}, "heaviest first")
+
+	rule.FunctionWords = false
+	got = rule.spans(text, textposIndex(text), 0, attr(0.9, 0, 0.5))
+	require.Len(t, got, 1)
+	assert.Equal(t, "ever", got[0].Text, "a pronoun is no span, however heavy")
+}
+
+func TestWordWeights(t *testing.T) {
+	hyp := "I have never seen the sea."
+	words := [][2]int{{0, 1}, {2, 6}, {7, 12}, {13, 17}, {18, 21}, {22, 25}, {25, 26}}
+	a := nli.Attribution{Contradiction: 0.999}
+	for _, w := range words {
+		a.Words = append(a.Words, nli.WordWeight{Start: w[0], End: w[1], Without: 0.999})
+	}
+	a.Words[2].Without = 0.99                                // "never": the odds fall from 999 to 99
+	a.Words[0].Without = 0.9                                 // "I": a pronoun, however heavy
+	a.Words[5].Without = 0.998                               // "sea"
+	a.Phrases = []nli.PhraseWeight{{First: 3, Without: 0.3}} // "seen the": only together
+	rule := DefaultSpanRule()
+	got := rule.WordWeights(hyp, a)
+	assert.InDelta(t, 1-99.0/999, got[2], 1e-9, "odds share of never")
+	assert.Zero(t, got[0], "function word")
+	assert.InDelta(t, 1-(0.998/0.002)/999, got[5], 1e-9)
+	pair := 1 - (0.3/0.7)/999
+	assert.InDelta(t, pair/2, got[3], 1e-9, "Shapley value in the pair: (0 + v(pair) - 0) / 2")
+	assert.Zero(t, got[4], "the, a function word, stays out")
+
+	rule.Measure, rule.Phrases = ProbDrop, false
+	got = rule.WordWeights(hyp, a)
+	assert.InDelta(t, 0.009, got[2], 1e-9)
+	assert.Zero(t, got[3], "without phrases")
+
+	for _, w := range []string{"I", "my", "I'm", "I’ve", "the", "is", "(them)"} {
+		assert.True(t, IsFunctionWord(w), w)
+	}
+	for _, w := range []string{"never", "not", "no", "only", "don't", "can't", "all", "sea", "Never,"} {
+		assert.False(t, IsFunctionWord(w), w)
+	}
 }
 
 // failingRunner fails any batch that holds the tokens of the word "kaboom".

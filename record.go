@@ -66,6 +66,8 @@ type Record struct {
 	Line      int    `json:"line"`
 	Model     string `json:"model,omitempty"`
 	Threshold Prob   `json:"threshold"`
+	// SkippedPairs counts the (fact, sentence) pairs the relevance gate kept from the NLI model.
+	SkippedPairs int `json:"skipped_pairs,omitempty"`
 	// Extra carries the input fields gainsay does not know, unchanged.
 	Extra map[string]json.RawMessage `json:"extra,omitempty"`
 }

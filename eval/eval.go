@@ -191,7 +191,7 @@ func rationales(s *nli.Scorer, items []Item, scored []nli.Scored, opts Options) 
 	}
 	rule := opts.Spans
 	if rule == (gainsay.SpanRule{}) {
-		rule = gainsay.DefaultSpanRule
+		rule = gainsay.DefaultSpanRule()
 	}
 	how := opts.Occlusion
 	if how == "" {
@@ -202,7 +202,7 @@ func rationales(s *nli.Scorer, items []Item, scored []nli.Scored, opts Options) 
 	for _, i := range idx {
 		it := items[i]
 		pair := scored[i].Pair
-		attr, err := s.Attribute(scored[i:i+1], how)
+		attr, err := s.Attribute(scored[i:i+1], nli.AttributionOptions{Occlusion: how, Phrases: rule.Phrases})
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", it.Source, err)
 		}
@@ -217,10 +217,7 @@ func rationales(s *nli.Scorer, items []Item, scored []nli.Scored, opts Options) 
 		if k == 0 {
 			continue // the gold range fell on punctuation only
 		}
-		loo := make([]float64, len(words))
-		for j, w := range words {
-			loo[j] = w.Weight
-		}
+		loo := rule.WordWeights(it.Hypothesis, attr[0])
 		nip := notInPremise(it.Premise, it.Hypothesis, words)
 		rnd := make([]float64, len(words))
 		for j := range rnd {

@@ -106,19 +106,48 @@ func without(hyp []tokenizer.Piece, ws []word, from, to int, how Occlusion, mask
 	return append(append([]tokenizer.Piece(nil), hyp[:first]...), hyp[last:]...)
 }
 
-// Attribution is leave-one-word-out attribution for one pair: how much the contradiction probability
-// falls when each hypothesis word is taken away (Li, Monroe, Jurafsky 2016, "Understanding Neural
-// Networks through Representation Erasure", applied to input words).
+// AttributionOptions say how words are taken away.
+type AttributionOptions struct {
+	Occlusion Occlusion // "": Delete
+	// Phrases also takes away every two adjacent words together (punctuation aside), so that a
+	// contradiction that either word carries alone is still seen.
+	Phrases bool
+}
+
+// Attribution is leave-one-word-out attribution for one pair: the contradiction probability when each
+// hypothesis word is taken away (Li, Monroe, Jurafsky 2016, "Understanding Neural Networks through
+// Representation Erasure", applied to input words), and with Phrases, when each two adjacent words are.
 type Attribution struct {
 	// Contradiction is the probability for the whole pair.
 	Contradiction float64
 	Words         []WordWeight
+	// Phrases are the adjacent word pairs taken away together (with AttributionOptions.Phrases).
+	Phrases []PhraseWeight
 	// Truncated: the pair was cut to the model's maximum length.
 	Truncated bool
 }
 
-// WordWeight is one hypothesis word and the drop in contradiction probability without it, clamped at 0.
+// WordWeight is one hypothesis word, the contradiction probability without it, and Weight, the drop
+// in contradiction probability without it, clamped at 0.
 type WordWeight struct {
 	Start, End int // UTF-8 bytes into the hypothesis
+	Without    float64
 	Weight     float64
+}
+
+// PhraseWeight is two adjacent words, Words[First] and Words[First+1], and the contradiction
+// probability without both.
+type PhraseWeight struct {
+	First   int
+	Without float64
+}
+
+// isPunct reports a word made of punctuation or symbols only.
+func isPunct(text string, w word) bool {
+	for _, r := range text[w.start:w.end] {
+		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
+			return false
+		}
+	}
+	return true
 }

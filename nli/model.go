@@ -13,12 +13,9 @@ import (
 	"os"
 	"slices"
 	"strings"
-	"sync"
-	"sync/atomic"
 	"time"
 
-	ort "github.com/yalue/onnxruntime_go"
-
+	"github.com/gainsay/gainsay/internal/onnx"
 	"github.com/gainsay/gainsay/tokenizer"
 )
 
@@ -44,18 +41,13 @@ type Options struct {
 // Model is an NLI cross-encoder loaded from a model folder: model.onnx, tokenizer.json and config.json
 // (whose id2label says which logit is which label). It is safe for concurrent use, Close included.
 type Model struct {
-	mu          sync.RWMutex // held for reading by every Run, for writing by Close
-	session     *ort.DynamicAdvancedSession
+	session     *onnx.Session
 	tok         *tokenizer.Tokenizer
-	inputs      []string // names of the inputs the model takes, in the order passed to Run
-	labels      [3]int   // logit index of contradiction, entailment, neutral
-	temperature float64  // logits are divided by it before the softmax
-	nLogits     int
+	labels      [3]int  // logit index of contradiction, entailment, neutral
+	temperature float64 // logits are divided by it before the softmax
 	maxLen      int
 	batchSize   int
 	sha256      string
-	runNanos    atomic.Int64 // time spent inside ONNX Runtime's Run, for benchmarks
-	runRows     atomic.Int64 // encoded pairs run
 }
 
 // Files a model folder must hold.
@@ -151,7 +143,7 @@ func Open(fsys fs.FS, opts Options) (*Model, error) {
 	if opts.SHA256 != "" && !strings.EqualFold(opts.SHA256, digest) {
 		return nil, fmt.Errorf("%s: SHA-256 is %s, want %s (the file is damaged or not the expected model)", FileModel, digest, opts.SHA256)
 	}
-	if err := InitRuntime(opts.Library); err != nil {
+	if err := onnx.InitRuntime(opts.Library); err != nil {
 		return nil, err
 	}
 	m := &Model{tok: tok, labels: labels, sha256: digest, batchSize: opts.BatchSize, temperature: cmp.Or(cfg.Temperature, 1)}
@@ -168,87 +160,17 @@ func Open(fsys fs.FS, opts Options) (*Model, error) {
 	if opts.MaxLength > 0 {
 		m.maxLen = min(m.maxLen, opts.MaxLength)
 	}
-	if err := m.openSession(onnxData, opts.Threads); err != nil {
+	if m.session, err = onnx.Open(onnxData, "logits", 3, opts.Threads); err != nil {
 		return nil, fmt.Errorf("%s: %w", FileModel, err)
 	}
 	return m, nil
 }
 
-func (m *Model) openSession(data []byte, threads int) error {
-	ins, outs, err := ort.GetInputOutputInfoWithONNXData(data)
-	if err != nil {
-		return err
-	}
-	have := map[string]bool{}
-	for _, in := range ins {
-		have[in.Name] = true
-	}
-	for _, in := range ins {
-		switch in.Name {
-		case "input_ids", "attention_mask", "token_type_ids":
-			if in.DataType != ort.TensorElementDataTypeInt64 {
-				return fmt.Errorf("input %s is %v; want int64", in.Name, in.DataType)
-			}
-			m.inputs = append(m.inputs, in.Name)
-		default:
-			return fmt.Errorf("input %q is not one of input_ids, attention_mask, token_type_ids", in.Name)
-		}
-	}
-	if !have["input_ids"] || !have["attention_mask"] {
-		return fmt.Errorf("the model must take input_ids and attention_mask")
-	}
-	// The logits: the output named "logits", else the only output.
-	output := ""
-	for _, o := range outs {
-		if o.Name == "logits" {
-			output = o.Name
-		}
-	}
-	if output == "" {
-		if len(outs) != 1 {
-			return fmt.Errorf("no output named logits among %d outputs", len(outs))
-		}
-		output = outs[0].Name
-	}
-	for _, o := range outs {
-		if o.Name == output {
-			if o.DataType != ort.TensorElementDataTypeFloat {
-				return fmt.Errorf("output %s is %v; want float32", o.Name, o.DataType)
-			}
-			if d := o.Dimensions; len(d) != 2 || (d[1] > 0 && d[1] != 3) {
-				return fmt.Errorf("output %s has shape %v; want [batch, 3]", o.Name, d)
-			}
-		}
-	}
-	m.nLogits = 3
-	so, err := ort.NewSessionOptions()
-	if err != nil {
-		return err
-	}
-	defer so.Destroy()
-	if threads > 0 {
-		if err := so.SetIntraOpNumThreads(threads); err != nil {
-			return err
-		}
-	}
-	m.session, err = ort.NewDynamicAdvancedSessionWithONNXData(data, m.inputs, []string{output}, so)
-	return err
-}
-
 // Close releases the ONNX Runtime session once the runs in progress are done; later runs fail.
-func (m *Model) Close() error {
-	m.mu.Lock()
-	defer m.mu.Unlock()
-	if m.session == nil {
-		return nil
-	}
-	err := m.session.Destroy()
-	m.session = nil
-	return err
-}
+func (m *Model) Close() error { return m.session.Close() }
 
 // Inputs are the names of the inputs the model takes.
-func (m *Model) Inputs() []string { return slices.Clone(m.inputs) }
+func (m *Model) Inputs() []string { return m.session.Inputs() }
 
 // LabelIndex returns the logit index of a label.
 func (m *Model) LabelIndex(l Label) int { return m.labels[l] }
@@ -264,10 +186,10 @@ func (m *Model) MaxLength() int { return m.maxLen }
 
 // RunTime is the total time spent inside ONNX Runtime's Run so far; the rest of a run's wall time is
 // tokenising, padding, attribution bookkeeping and output.
-func (m *Model) RunTime() time.Duration { return time.Duration(m.runNanos.Load()) }
+func (m *Model) RunTime() time.Duration { return m.session.RunTime() }
 
 // Rows is the number of encoded pairs run so far (each reading and each attribution variant counts).
-func (m *Model) Rows() int64 { return m.runRows.Load() }
+func (m *Model) Rows() int64 { return m.session.Rows() }
 
 // SHA256 is the hex SHA-256 of model.onnx.
 func (m *Model) SHA256() string { return m.sha256 }
@@ -328,69 +250,17 @@ func (m *Model) PredictEncoded(encs []Encoding) ([]Probs, error) {
 
 // run is one ONNX Runtime call on a batch, padded to its longest encoding.
 func (m *Model) run(batch []*Encoding) ([]Probs, error) {
-	m.mu.RLock()
-	defer m.mu.RUnlock()
-	if m.session == nil {
-		return nil, errors.New("model is closed")
+	rows := make([]onnx.Row, len(batch))
+	for i, e := range batch {
+		rows[i] = onnx.Row{IDs: e.IDs, TypeIDs: e.TypeIDs}
 	}
-	b, s := len(batch), 0
-	for _, e := range batch {
-		s = max(s, e.Len())
-	}
-	if s == 0 {
-		s = 1
-	}
-	shape := ort.NewShape(int64(b), int64(s))
-	values := make([]ort.Value, 0, len(m.inputs))
-	defer func() {
-		for _, v := range values {
-			v.Destroy()
-		}
-	}()
-	for _, name := range m.inputs {
-		data := make([]int64, b*s)
-		for r, e := range batch {
-			row := data[r*s : (r+1)*s]
-			switch name {
-			case "input_ids":
-				copy(row, e.IDs)
-				for k := e.Len(); k < s; k++ {
-					row[k] = int64(m.tok.PadID())
-				}
-			case "attention_mask":
-				for k := range e.Len() {
-					row[k] = 1
-				}
-			case "token_type_ids":
-				copy(row, e.TypeIDs)
-			}
-		}
-		t, err := ort.NewTensor(shape, data)
-		if err != nil {
-			return nil, err
-		}
-		values = append(values, t)
-	}
-	outputs := []ort.Value{nil}
-	start := time.Now()
-	err := m.session.Run(values, outputs)
-	m.runNanos.Add(int64(time.Since(start)))
-	m.runRows.Add(int64(b))
+	logits, err := m.session.Run(rows, int64(m.tok.PadID()))
 	if err != nil {
-		return nil, fmt.Errorf("onnxruntime: %w", err)
+		return nil, err
 	}
-	defer outputs[0].Destroy()
-	logits, ok := outputs[0].(*ort.Tensor[float32])
-	if !ok {
-		return nil, fmt.Errorf("onnxruntime: output is %T, want float32 tensor", outputs[0])
-	}
-	if sh := logits.GetShape(); len(sh) != 2 || sh[0] != int64(b) || sh[1] != int64(m.nLogits) {
-		return nil, fmt.Errorf("onnxruntime: output shape %v, want [%d %d]", sh, b, m.nLogits)
-	}
-	data := logits.GetData()
-	out := make([]Probs, b)
-	for r := range b {
-		p := softmax3(data[r*3:r*3+3], m.temperature)
+	out := make([]Probs, len(batch))
+	for r := range batch {
+		p := softmax3(logits[r*3:r*3+3], m.temperature)
 		out[r] = Probs{Contradiction: p[m.labels[0]], Entailment: p[m.labels[1]], Neutral: p[m.labels[2]]}
 	}
 	return out, nil

@@ -77,7 +77,7 @@ func TestBothWays(t *testing.T) {
 	got := []Probs{scored[0].Probs, scored[1].Probs}
 	assertProbs(t, probsOf(4, 0, 1), got[0], "never counts in both readings")
 	assertProbs(t, probsOf(4, 2, 1), got[1], "the reading with also in the hypothesis contradicts less")
-	attr, err := both.Attribute(scored[:1], Delete)
+	attr, err := both.Attribute(scored[:1], AttributionOptions{Occlusion: Delete})
 	require.NoError(t, err)
 	for _, w := range attr[0].Words {
 		want := 0.0
@@ -215,5 +215,5 @@ func attribute(m *Model, pairs []Pair, how Occlusion) ([]Attribution, error) {
 	if err != nil {
 		return nil, err
 	}
-	return s.Attribute(scored, how)
+	return s.Attribute(scored, AttributionOptions{Occlusion: how})
 }

@@ -121,38 +121,57 @@ func (s *Scorer) Score(pairs []Pair) ([]Scored, error) {
 	return out, nil
 }
 
-// occlusions is the attribution plan of one scored pair: the hypothesis words and, for each, the
-// encodings of the pair without it (forward, then reversed where the pair was read both ways).
+// occlusions is the attribution plan of one scored pair: the hypothesis words, the adjacent word
+// pairs taken away together, and the encodings of the pair without each (words, then phrases;
+// forward, then reversed where the pair was read both ways).
 type occlusions struct {
-	words []word
-	encs  []Encoding
+	words   []word
+	phrases []int // first word of each phrase
+	encs    []Encoding
 }
 
-func (s *Scorer) occlusions(sc *Scored, how Occlusion) occlusions {
+func (s *Scorer) occlusions(sc *Scored, opts AttributionOptions) occlusions {
 	m := s.Model
-	ws := words(sc.Pair.Hypothesis, sc.hypothesis)
-	o := occlusions{words: ws, encs: make([]Encoding, 0, 2*len(ws))}
+	hyp := sc.Pair.Hypothesis
+	ws := words(hyp, sc.hypothesis)
+	o := occlusions{words: ws}
+	if opts.Phrases {
+		for k := 0; k+1 < len(ws); k++ {
+			if !isPunct(hyp, ws[k]) && !isPunct(hyp, ws[k+1]) {
+				o.phrases = append(o.phrases, k)
+			}
+		}
+	}
 	mask := m.tok.MaskID()
+	variants := make([][]tokenizer.Piece, 0, len(ws)+len(o.phrases))
 	for k := range ws {
-		o.encs = append(o.encs, assemble(m.tok, sc.premise, without(sc.hypothesis, ws, k, k+1, how, mask), m.maxLen))
+		variants = append(variants, without(sc.hypothesis, ws, k, k+1, opts.Occlusion, mask))
+	}
+	for _, k := range o.phrases {
+		variants = append(variants, without(sc.hypothesis, ws, k, k+2, opts.Occlusion, mask))
+	}
+	o.encs = make([]Encoding, 0, 2*len(variants))
+	for _, v := range variants {
+		o.encs = append(o.encs, assemble(m.tok, sc.premise, v, m.maxLen))
 	}
 	if sc.Reversed {
-		for k := range ws {
-			o.encs = append(o.encs, assemble(m.tok, without(sc.hypothesis, ws, k, k+1, how, mask), sc.premise, m.maxLen))
+		for _, v := range variants {
+			o.encs = append(o.encs, assemble(m.tok, v, sc.premise, m.maxLen))
 		}
 	}
 	return o
 }
 
-// Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word is left
-// out in turn and the pair scored again, in each reading the pair was scored in. The whole pair's
+// Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word (and with
+// Phrases every two adjacent words) is left out in turn and the pair scored again, in each reading the
+// pair was scored in; a variant's probability is the smaller of its readings. The whole pair's
 // probabilities come from Score. The variants of all pairs go to the Runner together, so they fill
 // batches.
-func (s *Scorer) Attribute(scored []Scored, how Occlusion) ([]Attribution, error) {
+func (s *Scorer) Attribute(scored []Scored, opts AttributionOptions) ([]Attribution, error) {
 	plans := make([]occlusions, len(scored))
 	var all []Encoding
 	for i := range scored {
-		plans[i] = s.occlusions(&scored[i], how)
+		plans[i] = s.occlusions(&scored[i], opts)
 		all = append(all, plans[i].encs...)
 	}
 	probs, err := s.runner().PredictEncoded(all)
@@ -163,7 +182,7 @@ func (s *Scorer) Attribute(scored []Scored, how Occlusion) ([]Attribution, error
 	at := 0
 	for i, o := range plans {
 		sc := scored[i]
-		n := len(o.words)
+		n := len(o.words) + len(o.phrases)
 		without := func(k int) float64 {
 			c := probs[at+k].Contradiction
 			if sc.Reversed {
@@ -172,9 +191,13 @@ func (s *Scorer) Attribute(scored []Scored, how Occlusion) ([]Attribution, error
 			return c
 		}
 		full := sc.Probs.Contradiction
-		a := Attribution{Contradiction: full, Words: make([]WordWeight, n), Truncated: sc.Truncated}
+		a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: sc.Truncated}
 		for k, w := range o.words {
-			a.Words[k] = WordWeight{Start: w.start, End: w.end, Weight: max(0, full-without(k))}
+			c := without(k)
+			a.Words[k] = WordWeight{Start: w.start, End: w.end, Without: c, Weight: max(0, full-c)}
+		}
+		for j, k := range o.phrases {
+			a.Phrases = append(a.Phrases, PhraseWeight{First: k, Without: without(len(o.words) + j)})
 		}
 		out[i] = a
 		at += len(o.encs)

@@ -184,18 +184,11 @@ func newDecoder(typ string, raw json.RawMessage, path string) (decoder, error) {
 // decodeByteLevel maps byte-level characters back to bytes and reads them as UTF-8 (invalid
 // sequences as U+FFFD), all tokens into one string.
 func decodeByteLevel(ts []string) []string {
-	var inv [0x200]int16
-	for i := range inv {
-		inv[i] = -1
-	}
-	for b, r := range byteChar {
-		inv[r] = int16(b)
-	}
 	var buf []byte
 	for _, t := range ts {
 		for _, r := range t {
-			if r < rune(len(inv)) && inv[r] >= 0 {
-				buf = append(buf, byte(inv[r]))
+			if b, ok := charByte(r); ok {
+				buf = append(buf, b)
 			} else {
 				buf = utf8.AppendRune(buf, r)
 			}

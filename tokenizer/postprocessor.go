@@ -190,7 +190,7 @@ func (p *postProcessor) trimOffsets(pieces []Piece, tokenOf func(int) string) {
 	if !p.trim {
 		return
 	}
-	isSpace := func(r rune) bool { return r == byteChar[' '] || unicode.IsSpace(r) }
+	isSpace := func(r rune) bool { return r == byteChar(' ') || unicode.IsSpace(r) }
 	for i := range pieces {
 		rs := []rune(tokenOf(pieces[i].ID))
 		lead, trail := 0, 0

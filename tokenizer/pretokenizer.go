@@ -440,7 +440,7 @@ func (b *byteLevel) preTokenize(segs []segment) ([]segment, error) {
 		for _, c := range s.t {
 			n := utf8.EncodeRune(buf[:], c.r)
 			for _, by := range buf[:n] {
-				out = append(out, char{byteChar[by], c.start, c.end})
+				out = append(out, char{byteChar(by), c.start, c.end})
 			}
 		}
 		cut[i].t = out
@@ -448,17 +448,31 @@ func (b *byteLevel) preTokenize(segs []segment) ([]segment, error) {
 	return cut, nil
 }
 
-// byteChar is GPT-2's bytes_to_unicode: printable bytes stand for themselves, the others for
-// characters from U+0100 on, in byte order.
-var byteChar = func() (m [256]rune) {
-	n := 0
-	for b := range 256 {
-		if (b >= '!' && b <= '~') || (b >= 0xA1 && b <= 0xAC) || (b >= 0xAE && b <= 0xFF) {
-			m[b] = rune(b)
-		} else {
-			m[b] = rune(256 + n)
-			n++
-		}
+// byteChar is GPT-2's bytes_to_unicode: printable bytes stand for themselves, the others (0-32,
+// 127-160 and 173) for the characters from U+0100 on, in byte order.
+func byteChar(b byte) rune {
+	switch {
+	case b <= ' ':
+		return 256 + rune(b)
+	case b >= 127 && b <= 160:
+		return 256 + 33 + rune(b-127)
+	case b == 173:
+		return 256 + 33 + 34
 	}
-	return m
-}()
+	return rune(b)
+}
+
+// charByte inverts byteChar; ok is false for a character that stands for no byte.
+func charByte(r rune) (b byte, ok bool) {
+	switch {
+	case r >= 256 && r < 256+33:
+		return byte(r - 256), true
+	case r >= 256+33 && r < 256+33+34:
+		return byte(r-256-33) + 127, true
+	case r == 256+33+34:
+		return 173, true
+	case r < 256 && byteChar(byte(r)) == r:
+		return byte(r), true
+	}
+	return 0, false
+}

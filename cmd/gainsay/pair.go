@@ -42,7 +42,7 @@ them (check reads each pair both ways); with --words, each hypothesis word's lea
 			p := scored[0].Probs
 			var attr []nli.WordWeight
 			if words {
-				a, err := oneWay.Attribute(scored, how)
+				a, err := oneWay.Attribute(scored, nli.AttributionOptions{Occlusion: how})
 				if err != nil {
 					return err
 				}

@@ -91,8 +91,8 @@ flight (for up to --grace) and exits.`,
 	f.IntVar(&cfg.MaxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "characters per reply; longer ones become error records")
 	f.Float64Var(&cfg.Threshold, "threshold", gainsay.DefaultThreshold, "default contradiction threshold (a request may set its own)")
 	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	f.Float64Var(&cfg.Spans.MinWeight, "span-min-weight", gainsay.DefaultSpanRule.MinWeight, "least drop in contradiction probability for a word to be penalised")
-	f.Float64Var(&cfg.Spans.Relative, "span-relative", gainsay.DefaultSpanRule.Relative, "least share of the strongest word's drop for a word to be penalised")
+	f.Float64Var(&cfg.Spans.MinWeight, "span-min-weight", gainsay.DefaultSpanRule().MinWeight, "least drop in contradiction probability for a word to be penalised")
+	f.Float64Var(&cfg.Spans.Relative, "span-relative", gainsay.DefaultSpanRule().Relative, "least share of the strongest word's drop for a word to be penalised")
 	f.DurationVar(&grace, "grace", 30*time.Second, "how long shutdown waits for requests in flight")
 	f.BoolVar(&cfg.OneWay, "one-way", false, "read each pair only as fact then sentence (see gainsay help check)")
 	return c

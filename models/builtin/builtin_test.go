@@ -13,6 +13,7 @@ import (
 
 	"github.com/gainsay/gainsay/internal/jsonl"
 	"github.com/gainsay/gainsay/nli"
+	"github.com/gainsay/gainsay/relevance"
 	"github.com/gainsay/gainsay/tokenizer"
 )
 
@@ -104,5 +105,28 @@ func TestBatchingDoesNotChangeResults(t *testing.T) {
 	require.NoError(t, err)
 	for i := range a {
 		assert.InDelta(t, a[i].Contradiction, b[i].Contradiction, 1e-5, refs[i].Premise)
+	}
+}
+
+// The built-in sentence encoder against the onnxruntime Python package
+// (scripts/reference/relevance_reference.py): the same cosines to 1e-4 on the demo's fact and reply
+// pairs (invented) and SNLI test pairs (Bowman et al. 2015).
+func TestRelevanceMatchesReference(t *testing.T) {
+	type ref struct {
+		A, B   string
+		Cosine float64
+	}
+	refs := readLines[ref](t, "testdata/relevance-reference.jsonl")
+	e, err := OpenRelevance(relevance.Options{})
+	require.NoError(t, err)
+	defer e.Close()
+	var texts []string
+	for _, r := range refs {
+		texts = append(texts, r.A, r.B)
+	}
+	vecs, err := e.Embed(texts)
+	require.NoError(t, err)
+	for i, r := range refs {
+		assert.InDelta(t, r.Cosine, relevance.Cosine(vecs[2*i], vecs[2*i+1]), 1e-4, "%q / %q", r.A, r.B)
 	}
 }

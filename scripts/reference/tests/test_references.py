@@ -12,7 +12,7 @@ import pytest
 ROOT = os.path.normpath(os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", ".."))
 
 
-@pytest.mark.parametrize("script", ["tokenizer_reference.py", "ort_reference.py", "metrics_reference.py"])
+@pytest.mark.parametrize("script", ["tokenizer_reference.py", "ort_reference.py", "metrics_reference.py", "relevance_reference.py"])
 def test_reference_is_current(script):
     subprocess.run([sys.executable, os.path.join(ROOT, "scripts", "reference", script), "--check"], check=True)
 

@@ -1,4 +1,4 @@
-package nli
+package onnx
 
 import (
 	"os"
