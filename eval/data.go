@@ -51,22 +51,27 @@ type Item struct {
 type Format string
 
 const (
-	FormatAuto     Format = ""
-	FormatPairs    Format = "pairs"    // gainsay's JSON Lines: premise, hypothesis, label, optional culprits
-	FormatReplies  Format = "replies"  // gainsay's JSON Lines: id, text, label, optional culprits (needs a profile)
-	FormatSNLI     Format = "snli"     // s1.<split>, s2.<split>, labels.<split> (as distributed with e-SNLI)
-	FormatESNLI    Format = "esnli"    // e-SNLI CSV with *marked* highlights
-	FormatBreaking Format = "breaking" // Breaking NLI dataset.jsonl
-	FormatTaxiNLI  Format = "taxinli"  // TaxiNLI TSV of MultiNLI dev pairs
+	FormatAuto       Format = ""
+	FormatPairs      Format = "pairs"      // gainsay's JSON Lines: premise, hypothesis, label, optional culprits
+	FormatReplies    Format = "replies"    // gainsay's JSON Lines: id, text, label, optional culprits (needs a profile)
+	FormatCharacters Format = "characters" // a folder of NAME.yaml profiles beside NAME.jsonl labelled replies
+	FormatSNLI       Format = "snli"       // s1.<split>, s2.<split>, labels.<split> (as distributed with e-SNLI)
+	FormatESNLI      Format = "esnli"      // e-SNLI CSV with *marked* highlights
+	FormatBreaking   Format = "breaking"   // Breaking NLI dataset.jsonl
+	FormatTaxiNLI    Format = "taxinli"    // TaxiNLI TSV of MultiNLI dev pairs
 )
 
 // Formats lists the formats for help texts.
-var Formats = []Format{FormatPairs, FormatReplies, FormatSNLI, FormatESNLI, FormatBreaking, FormatTaxiNLI}
+var Formats = []Format{FormatPairs, FormatReplies, FormatCharacters, FormatSNLI, FormatESNLI, FormatBreaking, FormatTaxiNLI}
 
-// DetectFormat guesses a format from a path: a folder or s1.* file is SNLI, .csv e-SNLI, .tsv TaxiNLI,
-// and a JSON Lines file is told by its first object's fields.
+// DetectFormat guesses a format from a path: a folder of .yaml profiles is characters, another folder
+// or an s1.* file SNLI, .csv e-SNLI, .tsv TaxiNLI, and a JSON Lines file is told by its first object's
+// fields.
 func DetectFormat(path string) (Format, error) {
 	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		if m, _ := filepath.Glob(filepath.Join(path, "*.yaml")); len(m) > 0 {
+			return FormatCharacters, nil
+		}
 		return FormatSNLI, nil
 	}
 	base := filepath.Base(path)

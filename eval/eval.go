@@ -81,6 +81,8 @@ type Report struct {
 	Classification Classification `json:"classification"`
 	Contradiction  Threshold      `json:"contradiction"`
 	Rationales     *Rationales    `json:"rationales,omitempty"`
+	// Persona: where findings and spans fall, for labelled replies.
+	Persona *PersonaScores `json:"persona,omitempty"`
 }
 
 // Pairs evaluates a model on labelled pairs, read as the Scorer reads them (benchmarks are scored

@@ -48,6 +48,20 @@ func WriteText(w io.Writer, r *Report) error {
 				m.TopKPrecision, m.TopKRecall, m.TopKF1, m.AUPRC, m.HitAt1, m.Comprehensiveness, m.Sufficiency)
 		}
 	}
+	if ps := r.Persona; ps != nil {
+		fmt.Fprintf(tw, "\nfound contradictions\t%d\n", ps.Found)
+		fmt.Fprintf(tw, "heaviest span on a gold word\t%.3f\n", ps.HeaviestSpanHit)
+		fmt.Fprintf(tw, "top finding on a gold fact\t%.3f\n", ps.TopFindingOnGoldFact)
+		fmt.Fprintf(tw, "findings against other facts\t%d\n", ps.OffFactFindings)
+		fmt.Fprintf(tw, "spans of function words only\t%d\n", ps.FunctionWordSpans)
+		fmt.Fprintf(tw, "pairs read / skipped by relevance\t%d / %d\n", ps.Pairs, ps.SkippedPairs)
+		for _, m := range ps.Misses {
+			fmt.Fprintf(tw, "missed\t%s\n", m)
+		}
+		for _, m := range ps.FalseFlags {
+			fmt.Fprintf(tw, "false flag\t%s\n", m)
+		}
+	}
 	fmt.Fprintln(tw, "\nThese figures describe this data only; automatic judgements are sometimes wrong.")
 	return tw.Flush()
 }

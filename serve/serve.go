@@ -27,10 +27,12 @@ type Config struct {
 	MaxReplies   int           // replies per request (1024)
 	MaxFacts     int           // facts per profile (256)
 	MaxChars     int           // characters per reply (gainsay.DefaultMaxReplyChars)
-	Threshold    float64       // default threshold (gainsay.DefaultThreshold)
-	Occlusion    nli.Occlusion
-	Spans        gainsay.SpanRule
-	OneWay       bool // read pairs only as fact then sentence (see nli.Scorer.OneWay)
+	// Check are the check's options; a request may set its own threshold. Check.Model is set to the
+	// service's model name.
+	Check  gainsay.Options
+	OneWay bool // read pairs only as fact then sentence (see nli.Scorer.OneWay)
+	// Embedder, with Check.Relevance, is the relevance gate (nil: every pair is read).
+	Embedder gainsay.Embedder
 }
 
 func (c *Config) defaults() {
@@ -55,8 +57,8 @@ func (c *Config) defaults() {
 	if c.MaxChars <= 0 {
 		c.MaxChars = gainsay.DefaultMaxReplyChars
 	}
-	if c.Threshold <= 0 {
-		c.Threshold = gainsay.DefaultThreshold
+	if c.Check.Threshold <= 0 {
+		c.Check.Threshold = gainsay.DefaultThreshold
 	}
 }
 
@@ -171,13 +173,14 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 		fail(w, http.StatusRequestEntityTooLarge, "request: %d replies, over the limit of %d", len(req.Replies), s.cfg.MaxReplies)
 		return
 	}
-	threshold := s.cfg.Threshold
+	opts := s.cfg.Check
+	opts.Model = s.name
 	if req.Threshold != 0 {
 		if req.Threshold < 0 || req.Threshold > 1 {
 			fail(w, http.StatusBadRequest, "request: threshold must be in (0, 1]")
 			return
 		}
-		threshold = req.Threshold
+		opts.Threshold = req.Threshold
 	}
 	replies := make([]gainsay.Reply, len(req.Replies))
 	for i, raw := range req.Replies {
@@ -187,7 +190,7 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 		replies[i].Line = i + 1
 	}
 	checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: s.model, Runner: s.batcher, OneWay: s.cfg.OneWay},
-		Options: gainsay.Options{Threshold: threshold, Occlusion: s.cfg.Occlusion, Spans: s.cfg.Spans, Model: s.name}}
+		Embedder: s.cfg.Embedder, Options: opts}
 	recs, _ := checker.Check(prof, replies)
 	s.served.Add(1)
 	writeJSON(w, http.StatusOK, CheckResponse{Model: s.name, Records: recs})

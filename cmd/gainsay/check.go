@@ -10,19 +10,17 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/gainsay/gainsay"
-	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
 
 func newCheckCmd() *cobra.Command {
 	var (
 		mf                           modelFlags
+		cf                           checkFlags
 		profilePath, repliesPath     string
 		profileFormat, repliesFormat string
-		outPath, occlusion           string
-		threshold, spanMin, spanRel  float64
+		outPath                      string
 		maxChars, chunk              int
-		oneWay                       bool
 	)
 	c := &cobra.Command{
 		Use:   "check --profile P --replies R",
@@ -43,15 +41,8 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			if profilePath == "" || repliesPath == "" {
 				return unusable(fmt.Errorf("check needs --profile and --replies"))
 			}
-			if threshold <= 0 || threshold > 1 {
-				return unusable(fmt.Errorf("--threshold must be in (0, 1]"))
-			}
-			if spanMin < 0 || spanMin > 1 || spanRel < 0 || spanRel > 1 {
-				return unusable(fmt.Errorf("--span-min-weight and --span-relative must be in [0, 1]"))
-			}
-			how, err := nli.ParseOcclusion(occlusion)
-			if err != nil {
-				return unusable(err)
+			if _, err := cf.options(""); err != nil {
+				return err
 			}
 			prof, err := profile.ReadProfile(profilePath, profile.Format(profileFormat))
 			if err != nil {
@@ -78,8 +69,11 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			if err != nil {
 				return unusable(err)
 			}
-			checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: model, OneWay: oneWay}, Options: gainsay.Options{
-				Threshold: threshold, Occlusion: how, Spans: gainsay.SpanRule{MinWeight: spanMin, Relative: spanRel}, Model: name}}
+			checker, closeChecker, err := cf.checker(cmd, model, name)
+			if err != nil {
+				return err
+			}
+			defer closeChecker()
 			progress.total = total
 			st, err := checker.Run(cmd.Context(), prof, gainsay.NewReplyReader(in, repliesPath, rf, maxChars),
 				gainsay.NewRecordWriter(out), gainsay.RunOptions{Chunk: chunk, Progress: progress.update})
@@ -95,19 +89,15 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 		},
 	}
 	mf.register(c)
+	cf.register(c)
 	f := c.Flags()
 	f.StringVar(&profilePath, "profile", "", "character profile: .yaml, .json, or .txt (one fact a line)")
 	f.StringVar(&repliesPath, "replies", "", "replies: .jsonl ({\"id\", \"text\"} a line), .txt (one a line), or - for standard input (JSON Lines)")
 	f.StringVar(&profileFormat, "profile-format", "", "profile format when the extension does not say: yaml, json or text")
 	f.StringVar(&repliesFormat, "replies-format", "", "replies format when the extension does not say: jsonl or text")
 	f.StringVarP(&outPath, "out", "o", "", "output file (default: standard output)")
-	f.Float64Var(&threshold, "threshold", gainsay.DefaultThreshold, "contradiction probability at which a pair is flagged")
-	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	f.Float64Var(&spanMin, "span-min-weight", gainsay.DefaultSpanRule().MinWeight, "least drop in contradiction probability for a word to be penalised")
-	f.Float64Var(&spanRel, "span-relative", gainsay.DefaultSpanRule().Relative, "least share of the strongest word's drop for a word to be penalised")
 	f.IntVar(&maxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
 	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory)")
-	f.BoolVar(&oneWay, "one-way", false, "read each pair only as fact then sentence (half the work; no check that the contradiction holds both ways)")
 	return c
 }
 

@@ -5,7 +5,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/eval"
 	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
@@ -14,12 +13,11 @@ import (
 func newEvalCmd() *cobra.Command {
 	var (
 		mf                    modelFlags
+		cf                    checkFlags
 		data, format, split   string
 		profilePath, jsonPath string
-		occlusion             string
 		heldOut, rationales   bool
-		oneWay                bool
-		target, threshold     float64
+		target                float64
 		limit, every          int
 	)
 	c := &cobra.Command{
@@ -32,21 +30,26 @@ gold culprit words, how well leave-one-word-out attribution finds them (ERASER t
 comprehensiveness, sufficiency, hit@1) next to two cheap baselines.
 
 Formats (--format, guessed from the path when left out):
-  pairs     gainsay JSON Lines: {"premise", "hypothesis", "label", "culprits"?: [words], "culprit_spans"?: [[start, end]]}
-  replies   gainsay JSON Lines: {"id", "text", "label": "contradiction"|"consistent", "culprits"?}, with --profile
-  snli      SNLI as distributed with e-SNLI: a folder with s1/s2/labels.<split> (--split test or dev)
-  esnli     e-SNLI CSV; gold words are the hypothesis words any annotator marked
-  breaking  Breaking NLI dataset.jsonl; the gold word is the one that differs from the premise
-  taxinli   TaxiNLI TSV of MultiNLI dev pairs
---held-out keeps only what the built-in model never trained on (see models/builtin/README.md).`,
+  pairs       gainsay JSON Lines: {"premise", "hypothesis", "label", "culprits"?: [words], "culprit_spans"?: [[start, end]]}
+  replies     gainsay JSON Lines: {"id", "text", "label": "contradiction"|"consistent", "culprits"?, "fact_ids"?}, with --profile
+  characters  a folder of NAME.yaml profiles, each beside NAME.jsonl replies in the replies format
+              (e.g. testdata/persona-dev)
+  snli        SNLI as distributed with e-SNLI: a folder with s1/s2/labels.<split> (--split test or dev)
+  esnli       e-SNLI CSV; gold words are the hypothesis words any annotator marked
+  breaking    Breaking NLI dataset.jsonl; the gold word is the one that differs from the premise
+  taxinli     TaxiNLI TSV of MultiNLI dev pairs
+--held-out keeps only what the built-in model never trained on (see models/builtin/README.md).
+
+Replies and characters are checked as gainsay check does (both ways, relevance gate, span rule: the
+same flags); pairs are read one way, as NLI benchmarks are scored.`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if data == "" {
 				return unusable(fmt.Errorf("eval needs --data"))
 			}
-			how, err := nli.ParseOcclusion(occlusion)
+			opts, err := cf.options("")
 			if err != nil {
-				return unusable(err)
+				return err
 			}
 			f := eval.Format(format)
 			if f == eval.FormatAuto {
@@ -55,7 +58,7 @@ Formats (--format, guessed from the path when left out):
 				}
 			}
 			var items []eval.Item
-			var labelled []eval.LabelledReply
+			var chars []eval.Character
 			switch f {
 			case eval.FormatPairs:
 				items, err = eval.ReadPairs(data)
@@ -71,7 +74,14 @@ Formats (--format, guessed from the path when left out):
 				if profilePath == "" {
 					return unusable(fmt.Errorf("the replies format needs --profile"))
 				}
-				labelled, err = eval.ReadLabelledReplies(data)
+				var prof *profile.Profile
+				var labelled []eval.LabelledReply
+				if prof, err = profile.ReadProfile(profilePath, profile.FormatAuto); err == nil {
+					labelled, err = eval.ReadLabelledReplies(data)
+				}
+				chars = []eval.Character{{Profile: prof, Replies: labelled}}
+			case eval.FormatCharacters:
+				chars, err = eval.ReadCharacters(data)
 			default:
 				return unusable(fmt.Errorf("--format %q: want one of %v", format, eval.Formats))
 			}
@@ -79,8 +89,12 @@ Formats (--format, guessed from the path when left out):
 				return unusable(err)
 			}
 			items = sample(items, every, limit)
-			labelled = sample(labelled, every, limit)
-			if len(items) == 0 && len(labelled) == 0 {
+			n := len(items)
+			for i := range chars {
+				chars[i].Replies = sample(chars[i].Replies, every, limit)
+				n += len(chars[i].Replies)
+			}
+			if n == 0 {
 				return unusable(fmt.Errorf("%s: no labelled items", data))
 			}
 			model, name, err := mf.open(cmd)
@@ -89,19 +103,19 @@ Formats (--format, guessed from the path when left out):
 			}
 			defer model.Close()
 			var rep *eval.Report
-			if f == eval.FormatReplies {
-				prof, err := profile.ReadProfile(profilePath, profile.FormatAuto)
+			if chars != nil {
+				checker, closeChecker, err := cf.checker(cmd, model, name)
 				if err != nil {
-					return unusable(err)
+					return err
 				}
-				checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: model, OneWay: oneWay},
-					Options: gainsay.Options{Threshold: threshold, Occlusion: how, Model: name}}
-				rep, err = eval.Replies(checker, prof, labelled, target)
+				defer closeChecker()
+				rep, err = eval.Replies(checker, chars, target)
 				if err != nil {
 					return err
 				}
 			} else {
-				rep, err = eval.Pairs(&nli.Scorer{Model: model, OneWay: true}, items, eval.Options{TargetPrecision: target, Rationales: rationales, Occlusion: how})
+				rep, err = eval.Pairs(&nli.Scorer{Model: model, OneWay: true}, items, eval.Options{TargetPrecision: target,
+					Rationales: rationales, Occlusion: opts.Occlusion, Spans: opts.Spans})
 				if err != nil {
 					return err
 				}
@@ -122,20 +136,18 @@ Formats (--format, guessed from the path when left out):
 		},
 	}
 	mf.register(c)
+	cf.register(c)
 	fl := c.Flags()
 	fl.StringVar(&data, "data", "", "labelled data (file, or SNLI folder)")
-	fl.StringVar(&format, "format", "", "data format: pairs, replies, snli, esnli, breaking, taxinli (default: guessed)")
+	fl.StringVar(&format, "format", "", "data format: pairs, replies, characters, snli, esnli, breaking, taxinli (default: guessed)")
 	fl.StringVar(&split, "split", "", "SNLI split: test or dev (default: test, or the extension of an s1.* file)")
 	fl.BoolVar(&heldOut, "held-out", false, "keep only the rows the built-in model never trained on")
 	fl.StringVar(&profilePath, "profile", "", "profile for the replies format")
 	fl.StringVar(&jsonPath, "json", "", "also write the full results as JSON to this file")
 	fl.Float64Var(&target, "target-precision", 0, "report the contradiction threshold that reaches this precision")
-	fl.Float64Var(&threshold, "threshold", gainsay.DefaultThreshold, "replies format: contradiction threshold of the check")
 	fl.BoolVar(&rationales, "rationales", true, "evaluate attribution where the data has gold words")
-	fl.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
 	fl.IntVar(&limit, "limit", 0, "use at most this many items (after --every)")
 	fl.IntVar(&every, "every", 1, "use every k-th item (a fixed sample)")
-	fl.BoolVar(&oneWay, "one-way", false, "replies format: read pairs only as fact then sentence, as check --one-way")
 	return c
 }
 

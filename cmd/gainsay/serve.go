@@ -13,17 +13,16 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/gainsay/gainsay"
-	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/serve"
 )
 
 func newServeCmd() *cobra.Command {
 	var (
-		mf        modelFlags
-		addr      string
-		cfg       serve.Config
-		occlusion string
-		grace     time.Duration
+		mf    modelFlags
+		cf    checkFlags
+		addr  string
+		cfg   serve.Config
+		grace time.Duration
 	)
 	c := &cobra.Command{
 		Use:   "serve",
@@ -40,16 +39,22 @@ At most --max-inflight requests are worked on at once; others get 503 with Retry
 flight (for up to --grace) and exits.`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
-			how, err := nli.ParseOcclusion(occlusion)
-			if err != nil {
-				return unusable(err)
+			var err error
+			if cfg.Check, err = cf.options(""); err != nil {
+				return err
 			}
-			cfg.Occlusion = how
+			cfg.OneWay = cf.oneWay
 			model, name, err := mf.open(cmd)
 			if err != nil {
 				return err
 			}
 			defer model.Close()
+			if e, err := cf.embedder(cmd); err != nil {
+				return err
+			} else if e != nil {
+				defer e.Close()
+				cfg.Embedder = e
+			}
 			ln, err := net.Listen("tcp", addr)
 			if err != nil {
 				return unusable(err)
@@ -80,6 +85,7 @@ flight (for up to --grace) and exits.`,
 		},
 	}
 	mf.register(c)
+	cf.register(c)
 	f := c.Flags()
 	f.StringVar(&addr, "addr", "127.0.0.1:8734", "address to listen on (loopback by default)")
 	f.IntVar(&cfg.MaxBatch, "max-batch", 64, "pairs gathered into one shared run")
@@ -89,11 +95,6 @@ flight (for up to --grace) and exits.`,
 	f.IntVar(&cfg.MaxReplies, "max-replies", 1024, "replies per request")
 	f.IntVar(&cfg.MaxFacts, "max-facts", 256, "facts per profile")
 	f.IntVar(&cfg.MaxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "characters per reply; longer ones become error records")
-	f.Float64Var(&cfg.Threshold, "threshold", gainsay.DefaultThreshold, "default contradiction threshold (a request may set its own)")
-	f.StringVar(&occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	f.Float64Var(&cfg.Spans.MinWeight, "span-min-weight", gainsay.DefaultSpanRule().MinWeight, "least drop in contradiction probability for a word to be penalised")
-	f.Float64Var(&cfg.Spans.Relative, "span-relative", gainsay.DefaultSpanRule().Relative, "least share of the strongest word's drop for a word to be penalised")
 	f.DurationVar(&grace, "grace", 30*time.Second, "how long shutdown waits for requests in flight")
-	f.BoolVar(&cfg.OneWay, "one-way", false, "read each pair only as fact then sentence (see gainsay help check)")
 	return c
 }
