@@ -149,9 +149,13 @@ func summary(st gainsay.Stats) string {
 	if s := st.Elapsed.Seconds(); s > 0 {
 		rate = float64(st.Pairs) / s
 	}
-	return fmt.Sprintf("gainsay: %s, %s, %s; %s scored, %d attributed, %.0f pairs/s",
+	skipped := ""
+	if st.Skipped > 0 {
+		skipped = fmt.Sprintf(", %d skipped as unrelated", st.Skipped)
+	}
+	return fmt.Sprintf("gainsay: %s, %s, %s; %s scored%s, %d attributed, %.0f pairs/s",
 		plural(st.Replies, "reply", "replies"), plural(st.Contradictions, "contradiction", "contradictions"),
-		plural(st.Errors, "error", "errors"), plural(st.Pairs, "pair", "pairs"), st.Attributed, rate)
+		plural(st.Errors, "error", "errors"), plural(st.Pairs, "pair", "pairs"), skipped, st.Attributed, rate)
 }
 
 func plural(n int, one, many string) string {
