@@ -3,6 +3,9 @@ package gainsay
 import (
 	"cmp"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -33,6 +36,21 @@ type Options struct {
 	RelevanceTop int
 	// Model names the model in every record (e.g. "builtin@1a2b3c4d").
 	Model string
+	// RunID goes into every record: an identifier of the model, profile and settings (see RunID).
+	RunID string
+}
+
+// RunID is a short, stable identifier of what makes a run's records: give it the model's and the
+// encoder's SHA-256, the profile and every setting that changes output.
+func RunID(parts ...any) string {
+	h := sha256.New()
+	enc := json.NewEncoder(h)
+	for _, p := range parts {
+		if err := enc.Encode(p); err != nil {
+			fmt.Fprintf(h, "%#v\n", p)
+		}
+	}
+	return hex.EncodeToString(h.Sum(nil))[:16]
 }
 
 // Embedder embeds texts as unit vectors (a dot product is a cosine); *relevance.Embedder is one.
@@ -69,7 +87,11 @@ type Stats struct {
 	Replies, Contradictions, Errors int
 	// Pairs scored, pairs skipped by the relevance gate, and pairs attributed (at or above the threshold).
 	Pairs, Skipped, Attributed int
-	Elapsed           time.Duration
+	// Duplicates counts reply ids (Run only) that more than one reply used; DuplicateIDs names the
+	// first few, with their lines.
+	Duplicates   int
+	DuplicateIDs []string
+	Elapsed                    time.Duration
 }
 
 func (c *Checker) threshold() float64 {
@@ -144,7 +166,7 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 	}
 	var sents []sent
 	for i, r := range replies {
-		recs[i] = Record{ID: r.ID, Text: r.Text, Context: r.Context, Line: r.Line, Model: c.Model,
+		recs[i] = Record{ID: r.ID, Text: r.Text, Context: r.Context, Line: r.Line, Model: c.Model, Run: c.RunID,
 			Threshold: Prob(c.threshold()), Extra: r.Extra, Verdict: Consistent}
 		if r.Err != nil {
 			recs[i].Verdict, recs[i].Error = Failed, r.Err.Error()
@@ -309,6 +331,7 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 		chunk = 64
 	}
 	var total Stats
+	seen := map[string]int{} // reply id -> its first line
 	batch := make([]Reply, 0, chunk)
 	flush := func() error {
 		if len(batch) == 0 {
@@ -319,6 +342,9 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 			if err := w.Write(&recs[i]); err != nil {
 				return err
 			}
+		}
+		if err := w.Flush(); err != nil {
+			return err
 		}
 		total.Replies += st.Replies
 		total.Contradictions += st.Contradictions
@@ -342,6 +368,19 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 		}
 		if err != nil {
 			return total, err
+		}
+		if r.ID != "" {
+			if first, dup := seen[r.ID]; dup {
+				if first > 0 {
+					total.Duplicates++
+					if len(total.DuplicateIDs) < 5 {
+						total.DuplicateIDs = append(total.DuplicateIDs, fmt.Sprintf("%q (lines %d and %d)", r.ID, first, r.Line))
+					}
+					seen[r.ID] = -1 // counted once
+				}
+			} else {
+				seen[r.ID] = r.Line
+			}
 		}
 		batch = append(batch, r)
 		if len(batch) == chunk {

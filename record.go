@@ -1,7 +1,6 @@
 package gainsay
 
 import (
-	"bufio"
 	"bytes"
 	"encoding/json"
 	"errors"
@@ -68,6 +67,9 @@ type Record struct {
 	Threshold Prob   `json:"threshold"`
 	// SkippedPairs counts the (fact, sentence) pairs the relevance gate kept from the NLI model.
 	SkippedPairs int `json:"skipped_pairs,omitempty"`
+	// Run identifies the model, profile and settings that made the record (Options.RunID), so that
+	// a resumed run or the shards of one can be checked to belong together.
+	Run string `json:"run,omitempty"`
 	// Extra carries the input fields gainsay does not know, unchanged.
 	Extra map[string]json.RawMessage `json:"extra,omitempty"`
 }
@@ -107,31 +109,40 @@ type Span struct {
 	Weight    Prob   `json:"weight"`
 }
 
-// RecordWriter writes records as JSON Lines.
+// RecordWriter writes records as JSON Lines. Records are held until Flush, which hands them to the
+// underlying writer in one Write: a file killed mid-run then holds whole lines only.
 type RecordWriter struct {
-	w *bufio.Writer
+	w   io.Writer
+	buf bytes.Buffer
 }
 
-// NewRecordWriter writes to w; call Flush at the end.
-func NewRecordWriter(w io.Writer) *RecordWriter { return &RecordWriter{w: bufio.NewWriter(w)} }
+// NewRecordWriter writes to w; call Flush after each batch of records and at the end.
+func NewRecordWriter(w io.Writer) *RecordWriter { return &RecordWriter{w: w} }
 
-// Write writes one record as one line.
+// Write adds one record as one line.
 func (rw *RecordWriter) Write(r *Record) error {
 	b, err := MarshalRecord(r)
 	if err != nil {
 		return err
 	}
-	if _, err := rw.w.Write(b); err != nil {
-		return err
-	}
-	return rw.w.WriteByte('\n')
+	rw.buf.Write(b)
+	rw.buf.WriteByte('\n')
+	return nil
 }
 
-// Flush writes buffered records out.
-func (rw *RecordWriter) Flush() error { return rw.w.Flush() }
+// Flush writes the records added since the last Flush in one Write.
+func (rw *RecordWriter) Flush() error {
+	if rw.buf.Len() == 0 {
+		return nil
+	}
+	_, err := rw.w.Write(rw.buf.Bytes())
+	rw.buf.Reset()
+	return err
+}
 
 // MarshalJSON writes empty findings and spans as [] rather than null, so that consumers can iterate
-// without checks.
+// without checks, and the score of an error record as null: a reply that was not checked has no
+// score, and 0 would read as consistent.
 func (r Record) MarshalJSON() ([]byte, error) {
 	type plain Record // without this method
 	p := plain(r)
@@ -145,10 +156,22 @@ func (r Record) MarshalJSON() ([]byte, error) {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetEscapeHTML(false)
+	if r.Verdict == Failed {
+		p.Score = 0
+	}
 	if err := enc.Encode(p); err != nil {
 		return nil, err
 	}
-	return bytes.TrimRight(buf.Bytes(), "\n"), nil
+	out := bytes.TrimRight(buf.Bytes(), "\n")
+	if r.Verdict == Failed {
+		// The fields come in their declared order: id, verdict, score.
+		id, _ := json.Marshal(r.ID)
+		zero := append(append([]byte(`{"id":`), id...), `,"verdict":"error","score":0,`...)
+		if bytes.HasPrefix(out, zero) {
+			out = append(append(zero[:len(zero)-2:len(zero)-2], "null,"...), out[len(zero):]...)
+		}
+	}
+	return out, nil
 }
 
 // MarshalRecord encodes a record as one line without HTML escaping.

@@ -6,7 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"path/filepath"
+	"slices"
 	"strings"
 	"unicode/utf8"
 
@@ -130,20 +132,32 @@ func (rr replyParser) fail(rep Reply, field, format string, args ...any) Reply {
 
 func (rr replyParser) parse(raw []byte) Reply {
 	rep := Reply{Line: rr.line}
-	if !utf8.Valid(raw) {
-		// encoding/json would quietly turn invalid bytes into U+FFFD; say so instead.
-		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", textpos.FirstInvalidUTF8(raw)+1)
-	}
+	// encoding/json would quietly turn invalid bytes into U+FFFD; the reply fails instead, but keeps
+	// its id where the id itself is valid, so that its record can be joined back to it.
+	invalid := !utf8.Valid(raw)
 	var fields map[string]json.RawMessage
 	if err := json.Unmarshal(raw, &fields); err != nil {
-		return rr.fail(rep, "", "not a JSON object: %v", err)
+		if invalid {
+			return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", textpos.FirstInvalidUTF8(raw)+1)
+		}
+		return rr.fail(rep, "", "%s", notAnObject(raw, err))
 	}
 	if idRaw, ok := fields["id"]; ok {
 		id, err := scalarString(idRaw)
 		if err != nil {
 			return rr.fail(rep, "id", "%v", err)
 		}
-		rep.ID = id
+		if utf8.Valid(idRaw) {
+			rep.ID = id
+		}
+	}
+	if invalid {
+		for _, k := range slices.Sorted(maps.Keys(fields)) {
+			if v := fields[k]; !utf8.Valid(v) {
+				return rr.fail(rep, k, "invalid UTF-8 at byte %d of the line", bytes.Index(raw, v)+textpos.FirstInvalidUTF8(v)+1)
+			}
+		}
+		return rr.fail(rep, "", "invalid UTF-8 at byte %d of the line", textpos.FirstInvalidUTF8(raw)+1)
 	}
 	if rep.ID == "" {
 		return rr.fail(rep, "id", "missing or empty")
@@ -154,6 +168,9 @@ func (rr replyParser) parse(raw []byte) Reply {
 	}
 	if err := json.Unmarshal(textRaw, &rep.Text); err != nil || bytes.Equal(bytes.TrimSpace(textRaw), []byte("null")) {
 		return rr.fail(rep, "text", "must be a string")
+	}
+	if strings.TrimSpace(rep.Text) == "" {
+		return rr.fail(rep, "text", "empty: nothing to check")
 	}
 	if c, ok := fields["context"]; ok && !bytes.Equal(bytes.TrimSpace(c), []byte("null")) {
 		if err := json.Unmarshal(c, &rep.Context); err != nil {
@@ -178,6 +195,30 @@ func (rr replyParser) checkLength(rep Reply) Reply {
 		return rr.fail(rep, "text", "%d characters, over the limit of %d", n, rr.maxChars)
 	}
 	return rep
+}
+
+// notAnObject says plainly why a line is not a JSON object: another JSON value, or not JSON.
+func notAnObject(raw []byte, err error) string {
+	var v any
+	if json.Unmarshal(raw, &v) == nil {
+		kind := "a number"
+		switch v.(type) {
+		case []any:
+			kind = "an array"
+		case string:
+			kind = "a string"
+		case bool:
+			kind = "true or false"
+		case nil:
+			kind = "null"
+		}
+		return fmt.Sprintf("not a JSON object but %s; a reply is {\"id\": ..., \"text\": ...}", kind)
+	}
+	var se *json.SyntaxError
+	if errors.As(err, &se) {
+		return fmt.Sprintf("not a JSON object: invalid JSON at byte %d of the line", se.Offset)
+	}
+	return "not a JSON object: " + err.Error()
 }
 
 // scalarString accepts a JSON string or number as an id.

@@ -35,9 +35,11 @@ func TestReplyReader(t *testing.T) {
 		`{"id": "h", "text": "` + strings.Repeat("é", 31) + `"}`,
 		`{"id": "i", "text": null}`,
 		`{"id": "j", "text": "ok", "context": 3}`,
+		`{"id": "k", "text": "  "}`,
+		`["not", "an", "object"]`,
 	}, "\n")
 	got := readAll(t, data, FormatJSONL, 30)
-	require.Len(t, got, 10, "blank line skipped, every other line is a reply")
+	require.Len(t, got, 12, "blank line skipped, every other line is a reply")
 	assert.NoError(t, got[0].Err)
 	assert.Equal(t, "a", got[0].ID)
 	assert.Equal(t, "Hi?", got[0].Context)
@@ -50,11 +52,13 @@ func TestReplyReader(t *testing.T) {
 		"r.jsonl:4: text: missing",
 		"r.jsonl:5: text: must be a string",
 		"r.jsonl:6: not a JSON object",
-		"r.jsonl:7: invalid UTF-8 at byte 25 of the line",
+		"r.jsonl:7: text: invalid UTF-8 at byte 25 of the line",
 		"r.jsonl:8: id: missing or empty",
 		"r.jsonl:9: text: 31 characters, over the limit of 30",
 		"r.jsonl:10: text: must be a string",
 		"r.jsonl:11: context: must be a string",
+		"r.jsonl:12: text: empty",
+		"r.jsonl:13: not a JSON object but an array",
 	}
 	for i, w := range wantErr {
 		if w == "" {
@@ -65,6 +69,7 @@ func TestReplyReader(t *testing.T) {
 		assert.Contains(t, got[i].Err.Error(), w)
 	}
 	assert.Equal(t, "c", got[2].ID, "the id is kept when known")
+	assert.Equal(t, "f", got[5].ID, "even when the text has invalid UTF-8")
 
 	text := readAll(t, "\ufeffFirst reply.\n\nSecond reply.\r\n", FormatText, 0)
 	require.Len(t, text, 2)

@@ -32,6 +32,7 @@ type Options struct {
 // Embedder turns sentences into unit vectors whose dot product is their cosine similarity. It is safe
 // for concurrent use.
 type Embedder struct {
+	sha256    string
 	session   *onnx.Session
 	tok       *tokenizer.Tokenizer
 	dim       int
@@ -88,13 +89,15 @@ func Open(fsys fs.FS, opts Options) (*Embedder, error) {
 	if err != nil {
 		return nil, err
 	}
-	if sum := sha256.Sum256(raw); opts.SHA256 != "" && !strings.EqualFold(hex.EncodeToString(sum[:]), opts.SHA256) {
-		return nil, fmt.Errorf("model.onnx: SHA-256 is %x, want %s (the file is damaged or not the expected model)", sum, opts.SHA256)
+	sum := sha256.Sum256(raw)
+	digest := hex.EncodeToString(sum[:])
+	if opts.SHA256 != "" && !strings.EqualFold(digest, opts.SHA256) {
+		return nil, fmt.Errorf("model.onnx: SHA-256 is %s, want %s (the file is damaged or not the expected model)", digest, opts.SHA256)
 	}
 	if err := onnx.InitRuntime(opts.Library); err != nil {
 		return nil, err
 	}
-	e := &Embedder{tok: tok, dim: cfg.HiddenSize, maxLen: cfg.MaxLength, batchSize: opts.BatchSize}
+	e := &Embedder{sha256: digest, tok: tok, dim: cfg.HiddenSize, maxLen: cfg.MaxLength, batchSize: opts.BatchSize}
 	if e.maxLen <= 0 {
 		e.maxLen = 256
 	}
@@ -106,6 +109,9 @@ func Open(fsys fs.FS, opts Options) (*Embedder, error) {
 	}
 	return e, nil
 }
+
+// SHA256 is the hex SHA-256 of model.onnx.
+func (e *Embedder) SHA256() string { return e.sha256 }
 
 // Close releases the ONNX Runtime session.
 func (e *Embedder) Close() error { return e.session.Close() }

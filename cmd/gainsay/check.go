@@ -3,13 +3,16 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/gainsay/gainsay"
+	"github.com/gainsay/gainsay/internal/outfile"
 	"github.com/gainsay/gainsay/profile"
 )
 
@@ -21,6 +24,7 @@ func newCheckCmd() *cobra.Command {
 		profileFormat, repliesFormat string
 		outPath                      string
 		maxChars, chunk              int
+		resume, force                bool
 	)
 	c := &cobra.Command{
 		Use:   "check --profile P --replies R",
@@ -44,6 +48,15 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 			if _, err := cf.options(""); err != nil {
 				return err
 			}
+			toFile := outPath != "" && outPath != "-"
+			switch {
+			case resume && !toFile:
+				return unusable(fmt.Errorf("--resume needs --out FILE"))
+			case resume && force:
+				return unusable(fmt.Errorf("--resume and --force: choose one"))
+			case chunk <= 0:
+				return unusable(fmt.Errorf("--chunk must be at least 1"))
+			}
 			prof, err := profile.ReadProfile(profilePath, profile.Format(profileFormat))
 			if err != nil {
 				return unusable(err)
@@ -65,24 +78,48 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 				return err
 			}
 			defer model.Close()
-			out, closeOut, err := createOutput(cmd, outPath)
-			if err != nil {
-				return unusable(err)
-			}
 			checker, closeChecker, err := cf.checker(cmd, model, name)
 			if err != nil {
 				return err
 			}
 			defer closeChecker()
+			checker.RunID = gainsay.RunID(checker.RunID, prof.Character, prof.Facts, maxChars)
+			rr := gainsay.NewReplyReader(in, repliesPath, rf, maxChars)
+			var out io.Writer = cmd.OutOrStdout()
+			var file *outfile.File
+			if toFile {
+				var done []outfile.Done
+				if resume {
+					file, done, err = outfile.Resume(outPath, chunk)
+				} else {
+					file, err = outfile.Create(outPath, force)
+				}
+				if err != nil {
+					return unusable(err)
+				}
+				defer file.Close()
+				if err := skipDone(rr, done, checker.RunID, outfile.Partial(outPath)); err != nil {
+					return unusable(err)
+				}
+				if len(done) > 0 {
+					fmt.Fprintf(cmd.ErrOrStderr(), "gainsay: resuming after %s\n", plural(len(done), "record", "records"))
+					total -= len(done)
+				}
+				out = file
+			}
 			progress.total = total
-			st, err := checker.Run(cmd.Context(), prof, gainsay.NewReplyReader(in, repliesPath, rf, maxChars),
-				gainsay.NewRecordWriter(out), gainsay.RunOptions{Chunk: chunk, Progress: progress.update})
+			st, err := checker.Run(cmd.Context(), prof, rr, gainsay.NewRecordWriter(out),
+				gainsay.RunOptions{Chunk: chunk, Progress: progress.update})
 			progress.done()
-			if cerr := closeOut(); err == nil {
-				err = cerr
+			if err == nil && file != nil {
+				err = file.Finish()
 			}
 			if err != nil {
 				return err
+			}
+			if len(st.DuplicateIDs) > 0 {
+				fmt.Fprintf(cmd.ErrOrStderr(), "gainsay: warning: %s used by more than one reply: %s\n",
+					plural(st.Duplicates, "id is", "ids are"), strings.Join(st.DuplicateIDs, ", "))
 			}
 			fmt.Fprintln(cmd.ErrOrStderr(), summary(st))
 			return nil
@@ -97,7 +134,9 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 	f.StringVar(&repliesFormat, "replies-format", "", "replies format when the extension does not say: jsonl or text")
 	f.StringVarP(&outPath, "out", "o", "", "output file (default: standard output)")
 	f.IntVar(&maxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
-	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory)")
+	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory); records are written a chunk at a time")
+	f.BoolVar(&resume, "resume", false, "continue a killed run: keep the records already in --out's partial file (same model, profile and settings) and check the rest")
+	f.BoolVar(&force, "force", false, "replace an existing --out file")
 	return c
 }
 
@@ -130,6 +169,29 @@ func openReplies(cmd *cobra.Command, path string, count bool) (io.ReadCloser, in
 		return nil, 0, err
 	}
 	return f, total, nil
+}
+
+// skipDone reads past the replies whose records an earlier run wrote, checking that they are the same
+// replies and that the records were made with the same model, profile and settings.
+func skipDone(rr *gainsay.ReplyReader, done []outfile.Done, run, partial string) error {
+	for i, d := range done {
+		if d.Run != run {
+			return fmt.Errorf("%s: record %d (%q) was made with another model, profile or settings (run %s, this run %s); rerun with --force to start again",
+				partial, i+1, d.ID, d.Run, run)
+		}
+		r, err := rr.Next()
+		if errors.Is(err, io.EOF) {
+			return fmt.Errorf("%s has %d records but the replies end after %d", partial, len(done), i)
+		}
+		if err != nil {
+			return err
+		}
+		if r.Line != d.Line || r.ID != d.ID {
+			return fmt.Errorf("%s: record %d is reply %q of line %d, but line %d of the replies is %q: not the same replies",
+				partial, i+1, d.ID, d.Line, r.Line, r.ID)
+		}
+	}
+	return nil
 }
 
 // createOutput opens the output file or standard output; the returned function flushes and closes it.

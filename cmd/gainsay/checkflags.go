@@ -98,8 +98,11 @@ func (f *checkFlags) checker(c *cobra.Command, model *nli.Model, name string) (*
 	}
 	ch := &gainsay.Checker{Scorer: &nli.Scorer{Model: model, OneWay: f.oneWay}, Options: opts}
 	done := func() {}
+	encoder := ""
 	if e != nil {
-		ch.Embedder, done = e, func() { e.Close() }
+		ch.Embedder, done, encoder = e, func() { e.Close() }, e.SHA256()
 	}
+	// What changes the records, so that a resumed run or a shard can be checked to belong.
+	ch.RunID = gainsay.RunID(model.SHA256(), model.MaxLength(), encoder, opts, f.oneWay)
 	return ch, done, nil
 }
