@@ -60,9 +60,12 @@ func (b *Batcher) PredictEncoded(encs []nli.Encoding) ([]nli.Probs, error) {
 
 // Close stops the batcher after the jobs already queued are done.
 func (b *Batcher) Close() {
-	b.once.Do(func() { close(b.done) })
+	b.stop()
 	b.wg.Wait()
 }
+
+// stop asks the batcher to stop without waiting for the run in progress.
+func (b *Batcher) stop() { b.once.Do(func() { close(b.done) }) }
 
 func (b *Batcher) loop() {
 	defer b.wg.Done()
@@ -92,6 +95,8 @@ func (b *Batcher) loop() {
 				n += len(j.encs)
 			case <-timer.C:
 				break collect
+			case <-b.done:
+				break collect // closing: run what is gathered now
 			}
 		}
 		timer.Stop()

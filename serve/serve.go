@@ -6,10 +6,15 @@ package serve
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
+	"mime"
 	"net/http"
+	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -71,6 +76,11 @@ type Server struct {
 	slots    chan struct{}
 	inflight atomic.Int64
 	served   atomic.Int64
+	// abort is closed when shutdown's grace runs out: requests still being worked on are answered
+	// 503 at once. handlers counts the requests being answered.
+	abort     chan struct{}
+	abortOnce sync.Once
+	handlers  sync.WaitGroup
 }
 
 // New builds a server around a loaded model; name goes into every record.
@@ -80,7 +90,34 @@ func New(m *nli.Model, name string, cfg Config) *Server {
 		cfg: cfg, model: m, name: name,
 		batcher: NewBatcher(m, cfg.MaxBatch, cfg.MaxWait, cfg.MaxInflight),
 		slots:   make(chan struct{}, cfg.MaxInflight),
+		abort:   make(chan struct{}),
 	}
+}
+
+// Shutdown stops srv as a service that a training loop depends on should stop: no new connections,
+// the requests in flight finished for up to grace, then those still running answered 503 (their
+// work is dropped) and every connection closed, all within about grace and a second. It closes the
+// batcher; it returns srv's own errors only.
+func (s *Server) Shutdown(srv *http.Server, grace time.Duration) error {
+	ctx, cancel := context.WithTimeout(context.Background(), grace)
+	defer cancel()
+	err := srv.Shutdown(ctx)
+	if !errors.Is(err, context.DeadlineExceeded) {
+		s.Close()
+		return err
+	}
+	s.abortOnce.Do(func() { close(s.abort) })
+	s.batcher.stop() // the run in progress, if any, is not waited for: the process is ending
+	answered := make(chan struct{})
+	go func() { s.handlers.Wait(); close(answered) }()
+	select {
+	case <-answered:
+	case <-time.After(time.Second):
+	}
+	if err := srv.Close(); err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return err
+	}
+	return nil
 }
 
 // Close stops the batcher; call it after the HTTP server has shut down.
@@ -105,6 +142,8 @@ type CheckRequest struct {
 type CheckResponse struct {
 	Model   string           `json:"model"`
 	Records []gainsay.Record `json:"records"`
+	// Warnings say what is odd but answered, e.g. reply ids used twice.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 type errorBody struct {
@@ -130,7 +169,52 @@ func (s *Server) health(w http.ResponseWriter, _ *http.Request) {
 	})
 }
 
+// DecodeRequest reads the body of POST /v1/check: one JSON object and nothing after it.
+func DecodeRequest(body []byte) (CheckRequest, error) {
+	var req CheckRequest
+	dec := json.NewDecoder(bytes.NewReader(body))
+	if err := dec.Decode(&req); err != nil {
+		return req, fmt.Errorf("request: not JSON: %v", err)
+	}
+	if _, err := dec.Token(); !errors.Is(err, io.EOF) {
+		return req, errors.New("request: data after the JSON object; send one object")
+	}
+	return req, nil
+}
+
+// isJSON accepts a missing content type, application/json and any +json type.
+func isJSON(contentType string) bool {
+	if contentType == "" {
+		return true
+	}
+	mt, _, err := mime.ParseMediaType(contentType)
+	return err == nil && (mt == "application/json" || strings.HasSuffix(mt, "+json"))
+}
+
 func (s *Server) check(w http.ResponseWriter, r *http.Request) {
+	s.handlers.Add(1)
+	defer s.handlers.Done()
+	if ct := r.Header.Get("Content-Type"); !isJSON(ct) {
+		fail(w, http.StatusUnsupportedMediaType, "content type %q: send application/json", ct)
+		return
+	}
+	// The body is read, and its size checked, before a work slot is taken: a client that stalls its
+	// body holds a connection until the server's read timeout, never a slot.
+	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, s.cfg.MaxBodyBytes))
+	if err != nil {
+		var tooBig *http.MaxBytesError
+		if errors.As(err, &tooBig) {
+			fail(w, http.StatusRequestEntityTooLarge, "request body over %d bytes", s.cfg.MaxBodyBytes)
+			return
+		}
+		fail(w, http.StatusBadRequest, "request body: %v", err)
+		return
+	}
+	req, err := DecodeRequest(body)
+	if err != nil {
+		fail(w, http.StatusBadRequest, "%v", err)
+		return
+	}
 	select {
 	case s.slots <- struct{}{}:
 	default:
@@ -139,23 +223,16 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	s.inflight.Add(1)
-	defer func() {
+	release := func() {
 		s.inflight.Add(-1)
 		<-s.slots
-	}()
-
-	body := http.MaxBytesReader(w, r.Body, s.cfg.MaxBodyBytes)
-	var req CheckRequest
-	dec := json.NewDecoder(body)
-	if err := dec.Decode(&req); err != nil {
-		var tooBig *http.MaxBytesError
-		if errors.As(err, &tooBig) {
-			fail(w, http.StatusRequestEntityTooLarge, "request body over %d bytes", s.cfg.MaxBodyBytes)
-			return
-		}
-		fail(w, http.StatusBadRequest, "request: not JSON: %v", err)
-		return
 	}
+	defer release()
+	s.work(w, &req)
+}
+
+// work answers a decoded request while it holds a slot.
+func (s *Server) work(w http.ResponseWriter, req *CheckRequest) {
 	if len(req.Profile) == 0 {
 		fail(w, http.StatusBadRequest, "request: profile: missing")
 		return
@@ -191,7 +268,36 @@ func (s *Server) check(w http.ResponseWriter, r *http.Request) {
 	}
 	checker := &gainsay.Checker{Scorer: &nli.Scorer{Model: s.model, Runner: s.batcher, OneWay: s.cfg.OneWay},
 		Embedder: s.cfg.Embedder, Options: opts}
-	recs, _ := checker.Check(prof, replies)
-	s.served.Add(1)
-	writeJSON(w, http.StatusOK, CheckResponse{Model: s.name, Records: recs})
+	done := make(chan []gainsay.Record, 1)
+	go func() {
+		recs, _ := checker.Check(prof, replies)
+		done <- recs
+	}()
+	select {
+	case recs := <-done:
+		s.served.Add(1)
+		writeJSON(w, http.StatusOK, CheckResponse{Model: s.name, Records: recs, Warnings: duplicates(replies)})
+	case <-s.abort:
+		fail(w, http.StatusServiceUnavailable, "shutting down: the request was not finished in time; send it to another instance")
+	}
+}
+
+// duplicates warns of reply ids used more than once in a request.
+func duplicates(replies []gainsay.Reply) []string {
+	seen := map[string]int{}
+	var out []string
+	for i, r := range replies {
+		if r.ID == "" {
+			continue
+		}
+		if first, ok := seen[r.ID]; ok {
+			if first >= 0 {
+				out = append(out, fmt.Sprintf("id %q is used by replies[%d] and replies[%d]", r.ID, first, i))
+				seen[r.ID] = -1
+			}
+			continue
+		}
+		seen[r.ID] = i
+	}
+	return out
 }

@@ -249,3 +249,92 @@ func mustJSON(v any) []byte {
 	}
 	return b
 }
+
+func TestTrailingDataAndContentType(t *testing.T) {
+	svc := New(tinyModel(t), "tiny", Config{})
+	defer svc.Close()
+	ts := httptest.NewServer(svc.Handler())
+	defer ts.Close()
+	one := `{"profile": {"character": "m", "facts": [{"id": "a", "text": "x"}]}, "replies": []}`
+	for _, c := range []struct {
+		body, ctype string
+		status      int
+		want        string
+	}{
+		{one + `{"replies": []}`, "application/json", 400, "data after the JSON object"},
+		{one + ` garbage`, "application/json", 400, "data after the JSON object"},
+		{one, "text/plain", 415, `text/plain`},
+		{one, "application/x-www-form-urlencoded", 415, "send application/json"},
+		{one + "\n", "application/json; charset=utf-8", 200, `"records":[]`},
+		{one, "", 200, `"records":[]`},
+	} {
+		req, err := http.NewRequest("POST", ts.URL+"/v1/check", strings.NewReader(c.body))
+		require.NoError(t, err)
+		if c.ctype != "" {
+			req.Header.Set("Content-Type", c.ctype)
+		}
+		resp, err := http.DefaultClient.Do(req)
+		require.NoError(t, err)
+		b, _ := io.ReadAll(resp.Body)
+		resp.Body.Close()
+		assert.Equal(t, c.status, resp.StatusCode, c.body)
+		assert.Contains(t, string(b), c.want, c.body)
+	}
+}
+
+func TestStalledBodiesHoldNoSlot(t *testing.T) {
+	// Twice as many clients as slots send their headers and stall their bodies; a well-behaved
+	// request is still answered, and the stalled ones are cut off by the read timeout.
+	svc := New(tinyModel(t), "tiny", Config{MaxInflight: 2})
+	defer svc.Close()
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	require.NoError(t, err)
+	srv := &http.Server{Handler: svc.Handler(), ReadTimeout: 2 * time.Second}
+	go srv.Serve(ln)
+	defer srv.Close()
+	var stalled []net.Conn
+	for range 4 {
+		c, err := net.Dial("tcp", ln.Addr().String())
+		require.NoError(t, err)
+		fmt.Fprintf(c, "POST /v1/check HTTP/1.1\r\nHost: x\r\nContent-Type: application/json\r\nContent-Length: 1000\r\n\r\n{\"profile\": ")
+		stalled = append(stalled, c)
+	}
+	time.Sleep(100 * time.Millisecond)
+	r, b := post(t, "http://"+ln.Addr().String(), request(0, 0, 1))
+	assert.Equal(t, http.StatusOK, r.StatusCode, "%s", b)
+	for _, c := range stalled {
+		c.SetReadDeadline(time.Now().Add(10 * time.Second))
+		resp, _ := io.ReadAll(c)
+		assert.NotContains(t, string(resp), "200 OK", "a stalled request is never answered as if complete")
+		c.Close()
+	}
+}
+
+func TestShutdownAnswersWhatGraceLeavesRunning(t *testing.T) {
+	// A gather window far longer than the grace keeps the request running past it.
+	svc := New(tinyModel(t), "tiny", Config{MaxWait: 30 * time.Second, MaxBatch: 1 << 20})
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	require.NoError(t, err)
+	srv := &http.Server{Handler: svc.Handler()}
+	go srv.Serve(ln)
+	done := make(chan int, 1)
+	go func() {
+		resp, err := http.Post("http://"+ln.Addr().String()+"/v1/check", "application/json", bytes.NewReader(mustJSON(request(0, 0, 2))))
+		if err != nil {
+			done <- -1
+			return
+		}
+		resp.Body.Close()
+		done <- resp.StatusCode
+	}()
+	for deadline := time.Now().Add(10 * time.Second); svc.inflight.Load() == 0; {
+		require.True(t, time.Now().Before(deadline), "the request never arrived")
+		time.Sleep(5 * time.Millisecond)
+	}
+	grace := 300 * time.Millisecond
+	start := time.Now()
+	require.NoError(t, svc.Shutdown(srv, grace))
+	// A bound, not a timing: grace is a limit the service must keep (with a second to close).
+	assert.Less(t, time.Since(start), grace+time.Second, "shutdown kept to its grace period")
+	assert.Equal(t, http.StatusServiceUnavailable, <-done, "the request still running was answered 503")
+}

@@ -1,8 +1,6 @@
 package main
 
 import (
-	"context"
-	"errors"
 	"fmt"
 	"net"
 	"net/http"
@@ -18,11 +16,12 @@ import (
 
 func newServeCmd() *cobra.Command {
 	var (
-		mf    modelFlags
-		cf    checkFlags
-		addr  string
-		cfg   serve.Config
-		grace time.Duration
+		mf                                modelFlags
+		cf                                checkFlags
+		addr                              string
+		cfg                               serve.Config
+		grace, readTimeout, headerTimeout time.Duration
+		idleTimeout                       time.Duration
 	)
 	c := &cobra.Command{
 		Use:   "serve",
@@ -34,9 +33,11 @@ func newServeCmd() *cobra.Command {
   GET  /healthz   -> {"status": "ok", "model", "inflight", ...}
 
 Concurrent requests share ONNX Runtime runs (at most --max-batch pairs, gathered for at most --max-wait).
-At most --max-inflight requests are worked on at once; others get 503 with Retry-After. Bodies over
---max-body-bytes get 413. On SIGINT or SIGTERM the service stops accepting, finishes the requests in
-flight (for up to --grace) and exits.`,
+At most --max-inflight requests are worked on at once; others get 503 with Retry-After. A request's body
+is read in full (within --read-timeout) before it takes one of those slots, so a client that stalls
+cannot hold one. Bodies over --max-body-bytes get 413, a content type other than JSON 415, anything
+after the JSON object 400. On SIGINT or SIGTERM the service stops accepting, finishes the requests in
+flight for up to --grace, answers those still running 503, and exits 0 within about a second more.`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			var err error
@@ -60,7 +61,8 @@ flight (for up to --grace) and exits.`,
 				return unusable(err)
 			}
 			svc := serve.New(model, name, cfg)
-			srv := &http.Server{Handler: svc.Handler(), ReadHeaderTimeout: 10 * time.Second}
+			srv := &http.Server{Handler: svc.Handler(), ReadHeaderTimeout: headerTimeout, ReadTimeout: readTimeout,
+				IdleTimeout: idleTimeout}
 			ctx, stop := signal.NotifyContext(cmd.Context(), syscall.SIGINT, syscall.SIGTERM)
 			defer stop()
 			errc := make(chan error, 1)
@@ -72,12 +74,8 @@ flight (for up to --grace) and exits.`,
 				return err
 			case <-ctx.Done():
 			}
-			fmt.Fprintln(cmd.ErrOrStderr(), "gainsay: shutting down, finishing requests in flight")
-			sctx, cancel := context.WithTimeout(context.Background(), grace)
-			defer cancel()
-			err = srv.Shutdown(sctx)
-			svc.Close()
-			if err != nil && !errors.Is(err, http.ErrServerClosed) {
+			fmt.Fprintf(cmd.ErrOrStderr(), "gainsay: shutting down, finishing requests in flight (for up to %v)\n", grace)
+			if err := svc.Shutdown(srv, grace); err != nil {
 				return err
 			}
 			fmt.Fprintln(cmd.ErrOrStderr(), "gainsay: stopped")
@@ -95,6 +93,9 @@ flight (for up to --grace) and exits.`,
 	f.IntVar(&cfg.MaxReplies, "max-replies", 1024, "replies per request")
 	f.IntVar(&cfg.MaxFacts, "max-facts", 256, "facts per profile")
 	f.IntVar(&cfg.MaxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "characters per reply; longer ones become error records")
-	f.DurationVar(&grace, "grace", 30*time.Second, "how long shutdown waits for requests in flight")
+	f.DurationVar(&grace, "grace", 30*time.Second, "how long shutdown waits for requests in flight before answering them 503")
+	f.DurationVar(&readTimeout, "read-timeout", 30*time.Second, "longest time to read a whole request, body included")
+	f.DurationVar(&headerTimeout, "read-header-timeout", 10*time.Second, "longest time to read a request's headers")
+	f.DurationVar(&idleTimeout, "idle-timeout", 60*time.Second, "how long an idle keep-alive connection stays open")
 	return c
 }
