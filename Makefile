@@ -8,7 +8,7 @@ VPY     := $(VENV)/bin/python
 BIN     := bin/gainsay
 OUT     := out
 
-.PHONY: all setup ort build demo test test-go test-python browser bench clean
+.PHONY: all setup ort build demo test test-go test-python browser fuzz bench clean
 
 all: build
 
@@ -45,6 +45,16 @@ test: build $(VENV)/.ok browser
 	$(GO) vet ./...
 	GAINSAY_REQUIRE_BROWSER=1 $(GO) test ./...
 	GAINSAY_BIN=$(CURDIR)/$(BIN) $(VPY) -m pytest -q scripts/python/tests scripts/reference/tests
+	$(MAKE) --no-print-directory fuzz
+
+# Each fuzz test for a short fixed time (the seed corpora in testdata/fuzz run in every go test).
+FUZZ_TIME ?= 10s
+FUZZ := ./profile:FuzzParseProfile ./:FuzzReplyReader ./internal/sentence:FuzzSplit \
+	./tokenizer:FuzzEncodePair ./serve:FuzzDecodeRequest
+fuzz:
+	@for t in $(FUZZ); do \
+		$(GO) test -run '^$$' -fuzz "^$${t#*:}$$" -fuzztime $(FUZZ_TIME) "$${t%%:*}" || exit 1; \
+	done
 
 # Timings live here, never in pass/fail tests.
 bench: build
