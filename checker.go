@@ -316,20 +316,34 @@ func (c *Checker) factVectors(p *profile.Profile) ([][]float32, error) {
 
 // RunOptions tune Run.
 type RunOptions struct {
-	// Chunk is how many replies are scored together (0: 64); memory stays bounded by it.
+	// Chunk is how many input lines make one chunk of replies scored together (0: 64): chunk k holds
+	// the replies on lines k*Chunk+1 to (k+1)*Chunk. Memory stays bounded by it, records are written a
+	// chunk at a time, and since chunks are fixed by line, a resumed run or the shards of a run score
+	// exactly the chunks an uninterrupted run does, and write the same bytes.
 	Chunk int
+	// Shard and Shards, when Shards > 1, check only the chunks whose index modulo Shards is Shard-1:
+	// shard Shard of Shards, a deterministic slice that workers agree on without talking.
+	Shard, Shards int
+	// After skips the replies on lines up to After (an earlier run checked them); Skipped, if set, is
+	// called with each reply of this shard that is skipped so, to check it against that run's record.
+	After   int
+	Skipped func(Reply) error
 	// Progress, if set, is called with the number of replies done after each chunk.
 	Progress func(done int)
 }
+
+// DefaultChunk is the number of lines in a chunk when RunOptions.Chunk is 0.
+const DefaultChunk = 64
+
+// ChunkOf is the chunk (0-based) of an input line.
+func ChunkOf(line, chunk int) int { return (line - 1) / chunk }
 
 // Run checks every reply of rr and writes one record per reply to w, in input order, chunk by chunk.
 // It stops early only for read, write or scoring failures of the whole run, or when ctx is done.
 func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, w *RecordWriter, opts RunOptions) (Stats, error) {
 	start := time.Now()
-	chunk := opts.Chunk
-	if chunk <= 0 {
-		chunk = 64
-	}
+	chunk := cmp.Or(opts.Chunk, DefaultChunk)
+	mine := func(r Reply) bool { return opts.Shards <= 1 || ChunkOf(r.Line, chunk)%opts.Shards == opts.Shard-1 }
 	var total Stats
 	seen := map[string]int{} // reply id -> its first line
 	batch := make([]Reply, 0, chunk)
@@ -369,6 +383,11 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 		if err != nil {
 			return total, err
 		}
+		if len(batch) > 0 && ChunkOf(r.Line, chunk) != ChunkOf(batch[0].Line, chunk) {
+			if err := flush(); err != nil {
+				return total, err
+			}
+		}
 		if r.ID != "" {
 			if first, dup := seen[r.ID]; dup {
 				if first > 0 {
@@ -382,16 +401,21 @@ func (c *Checker) Run(ctx context.Context, p *profile.Profile, rr *ReplyReader, 
 				seen[r.ID] = r.Line
 			}
 		}
-		batch = append(batch, r)
-		if len(batch) == chunk {
-			if err := flush(); err != nil {
-				return total, err
+		switch {
+		case !mine(r):
+		case r.Line <= opts.After:
+			if opts.Skipped != nil {
+				if err := opts.Skipped(r); err != nil {
+					return total, err
+				}
 			}
+		default:
+			batch = append(batch, r)
 		}
 	}
 	if err := flush(); err != nil {
 		return total, err
 	}
 	total.Elapsed = time.Since(start)
-	return total, w.Flush()
+	return total, nil
 }

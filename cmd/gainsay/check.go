@@ -3,7 +3,6 @@ package main
 import (
 	"bufio"
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -25,6 +24,7 @@ func newCheckCmd() *cobra.Command {
 		outPath                      string
 		maxChars, chunk              int
 		resume, force                bool
+		shard                        shardFlag
 	)
 	c := &cobra.Command{
 		Use:   "check --profile P --replies R",
@@ -83,14 +83,16 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 				return err
 			}
 			defer closeChecker()
-			checker.RunID = gainsay.RunID(checker.RunID, prof.Character, prof.Facts, maxChars)
+			checker.RunID = gainsay.RunID(checker.RunID, prof.Character, prof.Facts, maxChars, chunk)
 			rr := gainsay.NewReplyReader(in, repliesPath, rf, maxChars)
 			var out io.Writer = cmd.OutOrStdout()
+			runOpts := gainsay.RunOptions{Chunk: chunk, Shard: shard.k, Shards: shard.n, Progress: progress.update}
 			var file *outfile.File
+			var allSkipped func() error
 			if toFile {
 				var done []outfile.Done
 				if resume {
-					file, done, err = outfile.Resume(outPath, chunk)
+					file, done, runOpts.After, err = outfile.Resume(outPath, chunk)
 				} else {
 					file, err = outfile.Create(outPath, force)
 				}
@@ -98,9 +100,7 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 					return unusable(err)
 				}
 				defer file.Close()
-				if err := skipDone(rr, done, checker.RunID, outfile.Partial(outPath)); err != nil {
-					return unusable(err)
-				}
+				runOpts.Skipped, allSkipped = resumeCheck(done, checker.RunID, outfile.Partial(outPath))
 				if len(done) > 0 {
 					fmt.Fprintf(cmd.ErrOrStderr(), "gainsay: resuming after %s\n", plural(len(done), "record", "records"))
 					total -= len(done)
@@ -108,8 +108,10 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 				out = file
 			}
 			progress.total = total
-			st, err := checker.Run(cmd.Context(), prof, rr, gainsay.NewRecordWriter(out),
-				gainsay.RunOptions{Chunk: chunk, Progress: progress.update})
+			st, err := checker.Run(cmd.Context(), prof, rr, gainsay.NewRecordWriter(out), runOpts)
+			if err == nil && allSkipped != nil {
+				err = allSkipped()
+			}
 			progress.done()
 			if err == nil && file != nil {
 				err = file.Finish()
@@ -134,9 +136,10 @@ failed on the way, 2 when the arguments, model or profile are unusable.`,
 	f.StringVar(&repliesFormat, "replies-format", "", "replies format when the extension does not say: jsonl or text")
 	f.StringVarP(&outPath, "out", "o", "", "output file (default: standard output)")
 	f.IntVar(&maxChars, "max-reply-chars", gainsay.DefaultMaxReplyChars, "longest reply accepted, in characters; longer ones become error records")
-	f.IntVar(&chunk, "chunk", 64, "replies scored together (bounds memory); records are written a chunk at a time")
+	f.IntVar(&chunk, "chunk", gainsay.DefaultChunk, "input lines whose replies are scored together (bounds memory); records are written a chunk at a time")
 	f.BoolVar(&resume, "resume", false, "continue a killed run: keep the records already in --out's partial file (same model, profile and settings) and check the rest")
 	f.BoolVar(&force, "force", false, "replace an existing --out file")
+	f.Var(&shard, "shard", "check only shard K of N: the chunks (of --chunk input lines) whose index modulo N is K-1; join the shards with gainsay merge")
 	return c
 }
 
@@ -171,28 +174,54 @@ func openReplies(cmd *cobra.Command, path string, count bool) (io.ReadCloser, in
 	return f, total, nil
 }
 
-// skipDone reads past the replies whose records an earlier run wrote, checking that they are the same
-// replies and that the records were made with the same model, profile and settings.
-func skipDone(rr *gainsay.ReplyReader, done []outfile.Done, run, partial string) error {
-	for i, d := range done {
+// resumeCheck returns the check of each reply that an earlier run wrote a record for (the same reply,
+// in order, and a record made with the same model, profile and settings), and the check, at the end,
+// that every such record met its reply.
+func resumeCheck(done []outfile.Done, run, partial string) (func(gainsay.Reply) error, func() error) {
+	i := 0
+	each := func(r gainsay.Reply) error {
+		if i >= len(done) {
+			return unusable(fmt.Errorf("%s: line %d of the replies has no record in it: not the same replies", partial, r.Line))
+		}
+		d := done[i]
+		i++
 		if d.Run != run {
-			return fmt.Errorf("%s: record %d (%q) was made with another model, profile or settings (run %s, this run %s); rerun with --force to start again",
-				partial, i+1, d.ID, d.Run, run)
-		}
-		r, err := rr.Next()
-		if errors.Is(err, io.EOF) {
-			return fmt.Errorf("%s has %d records but the replies end after %d", partial, len(done), i)
-		}
-		if err != nil {
-			return err
+			return unusable(fmt.Errorf("%s: record %d (%q) was made with another model, profile or settings (run %s, this run %s); rerun with --force to start again",
+				partial, i, d.ID, d.Run, run))
 		}
 		if r.Line != d.Line || r.ID != d.ID {
-			return fmt.Errorf("%s: record %d is reply %q of line %d, but line %d of the replies is %q: not the same replies",
-				partial, i+1, d.ID, d.Line, r.Line, r.ID)
+			return unusable(fmt.Errorf("%s: record %d is reply %q of line %d, but line %d of the replies is %q: not the same replies",
+				partial, i, d.ID, d.Line, r.Line, r.ID))
 		}
+		return nil
+	}
+	end := func() error {
+		if i < len(done) {
+			return unusable(fmt.Errorf("%s has %d records but the replies end before record %d: not the same replies", partial, len(done), i+1))
+		}
+		return nil
+	}
+	return each, end
+}
+
+// shardFlag is --shard K/N.
+type shardFlag struct{ k, n int }
+
+func (s *shardFlag) String() string {
+	if s.n == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%d/%d", s.k, s.n)
+}
+
+func (s *shardFlag) Set(v string) error {
+	if _, err := fmt.Sscanf(v, "%d/%d", &s.k, &s.n); err != nil || s.n < 1 || s.k < 1 || s.k > s.n {
+		return fmt.Errorf("want K/N with 1 <= K <= N, e.g. 2/8")
 	}
 	return nil
 }
+
+func (s *shardFlag) Type() string { return "K/N" }
 
 // createOutput opens the output file or standard output; the returned function flushes and closes it.
 func createOutput(cmd *cobra.Command, path string) (io.Writer, func() error, error) {

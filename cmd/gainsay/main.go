@@ -84,6 +84,6 @@ training; it is no safety filter and no substitute for human review.`,
 		SilenceErrors: true,
 	}
 	root.PersistentFlags().String("ort-lib", "", "ONNX Runtime shared library (default $GAINSAY_ORT_LIB, then the set-up location)")
-	root.AddCommand(newCheckCmd(), newPairCmd(), newEvalCmd(), newCompareCmd(), newAlignCmd(), newServeCmd(), newReportCmd(), newModelCmd())
+	root.AddCommand(newCheckCmd(), newMergeCmd(), newPairCmd(), newEvalCmd(), newCompareCmd(), newAlignCmd(), newServeCmd(), newReportCmd(), newModelCmd())
 	return root
 }

@@ -21,6 +21,9 @@ func Partial(path string) string { return path + ".partial" }
 type File struct {
 	f             *os.File
 	path, partial string
+	cut           int64 // where a resumed file is cut before its first write (-1: nowhere)
+	wasFinal      bool  // resumed from the finished file
+	done          bool
 }
 
 // Create starts a new output for path. It refuses to replace an existing path or the partial file of
@@ -42,7 +45,7 @@ func Create(path string, force bool) (*File, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &File{f: f, path: path, partial: partial}, nil
+	return &File{f: f, path: path, partial: partial, cut: -1}, nil
 }
 
 // Done is one record already written: the reply it answers.
@@ -53,39 +56,42 @@ type Done struct {
 }
 
 // Resume reopens the output of an earlier run of path: its partial file, or the finished file, which
-// goes back to being partial until the run finishes again. Only whole lines count; of those, the
-// records up to the last multiple of chunk are kept (the rest are redone, so that the run scores the
-// same chunks as an uninterrupted one and writes the same bytes) and the file is cut there. It
-// returns the kept records, for the caller to check against the replies and settings.
-func Resume(path string, chunk int) (*File, []Done, error) {
+// goes back to being partial until the run finishes again. Only whole lines count; the records of the
+// last chunk present (chunks of input lines, as gainsay.ChunkOf) are dropped and redone, so that the
+// run scores the same chunks as an uninterrupted one and writes the same bytes, and the file is cut
+// there (when the run first writes or finishes: a run that refuses to go on leaves the file as it
+// was). It returns the kept records, for the caller to check against the replies and settings, and
+// the last input line their chunks cover (0 when none is kept).
+func Resume(path string, chunk int) (*File, []Done, int, error) {
 	partial := Partial(path)
+	wasFinal := false
 	if _, err := os.Stat(partial); errors.Is(err, os.ErrNotExist) {
 		if _, err := os.Stat(path); err != nil {
-			return nil, nil, fmt.Errorf("--resume: neither %s nor %s exists", partial, path)
+			return nil, nil, 0, fmt.Errorf("--resume: neither %s nor %s exists", partial, path)
 		}
 		if err := os.Rename(path, partial); err != nil {
-			return nil, nil, err
+			return nil, nil, 0, err
 		}
+		wasFinal = true
 	}
 	f, err := os.OpenFile(partial, os.O_RDWR, 0o644)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, 0, err
 	}
 	done, keep, err := read(f, partial, chunk)
-	if err == nil {
-		err = f.Truncate(keep)
-	}
-	if err == nil {
-		_, err = f.Seek(keep, io.SeekStart)
-	}
 	if err != nil {
-		f.Close()
-		return nil, nil, err
+		out := &File{f: f, path: path, partial: partial, cut: keep, wasFinal: wasFinal}
+		out.Close()
+		return nil, nil, 0, err
 	}
-	return &File{f: f, path: path, partial: partial}, done, nil
+	after := 0
+	if len(done) > 0 {
+		after = (gainsay.ChunkOf(done[len(done)-1].Line, chunk) + 1) * chunk
+	}
+	return &File{f: f, path: path, partial: partial, cut: keep, wasFinal: wasFinal}, done, after, nil
 }
 
-// read returns the records of whole chunks and the byte length they take.
+// read returns the records of all chunks but the last one present, and the byte length they take.
 func read(r io.Reader, name string, chunk int) ([]Done, int64, error) {
 	br := bufio.NewReaderSize(r, 1<<16)
 	var done []Done
@@ -115,7 +121,14 @@ func read(r io.Reader, name string, chunk int) ([]Done, int64, error) {
 			break
 		}
 	}
-	n := len(done) / chunk * chunk
+	n := len(done)
+	if n == 0 {
+		return nil, 0, nil
+	}
+	last := gainsay.ChunkOf(done[n-1].Line, chunk)
+	for n > 0 && gainsay.ChunkOf(done[n-1].Line, chunk) == last {
+		n--
+	}
 	if n == 0 {
 		return nil, 0, nil
 	}
@@ -123,10 +136,33 @@ func read(r io.Reader, name string, chunk int) ([]Done, int64, error) {
 }
 
 // Write writes records out (call it with whole lines).
-func (f *File) Write(b []byte) (int, error) { return f.f.Write(b) }
+func (f *File) Write(b []byte) (int, error) {
+	if err := f.applyCut(); err != nil {
+		return 0, err
+	}
+	return f.f.Write(b)
+}
+
+func (f *File) applyCut() error {
+	if f.cut < 0 {
+		return nil
+	}
+	if err := f.f.Truncate(f.cut); err != nil {
+		return err
+	}
+	if _, err := f.f.Seek(f.cut, io.SeekStart); err != nil {
+		return err
+	}
+	f.cut = -1
+	return nil
+}
 
 // Finish makes the output final: synced, closed and renamed from the partial file to its path.
 func (f *File) Finish() error {
+	if err := f.applyCut(); err != nil {
+		f.f.Close()
+		return err
+	}
 	if err := f.f.Sync(); err != nil {
 		f.f.Close()
 		return err
@@ -134,8 +170,22 @@ func (f *File) Finish() error {
 	if err := f.f.Close(); err != nil {
 		return err
 	}
+	f.done = true
 	return os.Rename(f.partial, f.path)
 }
 
-// Close closes an unfinished output, which stays as the partial file for --resume.
-func (f *File) Close() error { return f.f.Close() }
+// Close closes an unfinished output, which stays as the partial file for --resume; a finished file
+// that was resumed and not written to gets its name back. Close after Finish does nothing.
+func (f *File) Close() error {
+	if f.done {
+		return nil
+	}
+	f.done = true
+	err := f.f.Close()
+	if f.wasFinal && f.cut >= 0 {
+		if rerr := os.Rename(f.partial, f.path); err == nil {
+			err = rerr
+		}
+	}
+	return err
+}
