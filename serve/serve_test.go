@@ -338,3 +338,25 @@ func TestShutdownAnswersWhatGraceLeavesRunning(t *testing.T) {
 	assert.Less(t, time.Since(start), grace+time.Second, "shutdown kept to its grace period")
 	assert.Equal(t, http.StatusServiceUnavailable, <-done, "the request still running was answered 503")
 }
+
+// The service holds no state between requests: two instances, each with its own model, behind a
+// round-robin client answer every request exactly as one instance does.
+func TestReplicasAnswerAsOne(t *testing.T) {
+	one := New(tinyModel(t), "tiny", Config{})
+	defer one.Close()
+	a, b := New(tinyModel(t), "tiny", Config{}), New(tinyModel(t), "tiny", Config{})
+	defer a.Close()
+	defer b.Close()
+	single := httptest.NewServer(one.Handler())
+	defer single.Close()
+	replicas := []*httptest.Server{httptest.NewServer(a.Handler()), httptest.NewServer(b.Handler())}
+	for _, r := range replicas {
+		defer r.Close()
+	}
+	for i := range 8 {
+		req := request(i, i%3, 4)
+		_, want := post(t, single.URL, req)
+		_, got := post(t, replicas[i%2].URL, req)
+		assert.Equal(t, string(want), string(got), "request %d", i)
+	}
+}

@@ -23,6 +23,7 @@ func TestScripts(t *testing.T) {
 		t.Fatal(err)
 	}
 	tinyBPE, _ := filepath.Abs("../../nli/testdata/tiny-bpe")
+	deploy, _ := filepath.Abs("../../deploy")
 	testscript.Run(t, testscript.Params{
 		Dir:                 "testdata/script",
 		RequireExplicitExec: true,
@@ -30,6 +31,7 @@ func TestScripts(t *testing.T) {
 		Setup: func(e *testscript.Env) error {
 			e.Setenv("TINY", tiny)
 			e.Setenv("TINYBPE", tinyBPE)
+			e.Setenv("DEPLOY", deploy)
 			for _, k := range []string{"GAINSAY_ORT_LIB", "GAINSAY_HOME", "HOME", "XDG_DATA_HOME"} {
 				if v, ok := os.LookupEnv(k); ok {
 					e.Setenv(k, v)
