@@ -36,7 +36,8 @@ type SpanRule struct {
 	Phrases bool
 	// FunctionWords lets pronouns, articles, auxiliaries, prepositions and conjunctions be spans.
 	// By default they are not: an unlikelihood loss over "I" or "my" teaches a generator to stop
-	// saying "I". Negations and quantifiers (not, never, no, only, all, ...) are never function words.
+	// saying "I". Negations and quantifiers (not, never, no, only, all, ...) are never function words;
+	// punctuation is never a span.
 	FunctionWords bool
 }
 
@@ -86,14 +87,22 @@ func (r SpanRule) WordWeights(hypothesis string, a nli.Attribution) []float64 {
 			out[j] = max(out[j], (single[j]+pair-single[i])/2)
 		}
 	}
-	if !r.FunctionWords {
-		for i, w := range a.Words {
-			if IsFunctionWord(hypothesis[w.Start:w.End]) {
-				out[i] = 0
-			}
+	for i, w := range a.Words {
+		// Punctuation is never to blame; function words only when the rule allows them.
+		if s := hypothesis[w.Start:w.End]; onlyPunct(s) || (!r.FunctionWords && IsFunctionWord(s)) {
+			out[i] = 0
 		}
 	}
 	return out
+}
+
+func onlyPunct(s string) bool {
+	for _, r := range s {
+		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
+			return false
+		}
+	}
+	return true
 }
 
 // odds of a probability, kept finite.

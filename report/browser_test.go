@@ -18,6 +18,9 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/gainsay/gainsay"
+	"github.com/gainsay/gainsay/eval"
+	"github.com/gainsay/gainsay/nli"
 	"github.com/gainsay/gainsay/profile"
 )
 
@@ -98,17 +101,120 @@ func TestInBrowser(t *testing.T) {
 	wd.callInto(t, "POST", "/execute/sync", script(`return Array.from(document.querySelectorAll('#items > li')).filter(li => li.offsetParent !== null).length`), &n)
 	assert.Equal(t, 1, n)
 
+	screenshot(t, wd, "report.png")
+}
+
+// screenshot saves the browser's view to $GAINSAY_TEST_OUT (default: out/browser at the repository root).
+func screenshot(t *testing.T, wd *webDriver, name string) {
 	var shot string
 	wd.callInto(t, "GET", "/screenshot", nil, &shot)
 	png, err := base64.StdEncoding.DecodeString(shot)
 	require.NoError(t, err)
 	out := os.Getenv("GAINSAY_TEST_OUT")
 	if out == "" {
-		out = filepath.Join("..", "..", "out", "browser")
+		out = filepath.Join("..", "out", "browser")
 	}
 	require.NoError(t, os.MkdirAll(out, 0o755))
-	require.NoError(t, os.WriteFile(filepath.Join(out, "report.png"), png, 0o644))
-	t.Logf("screenshot: %s (%d bytes)", filepath.Join(out, "report.png"), len(png))
+	require.NoError(t, os.WriteFile(filepath.Join(out, name), png, 0o644))
+	t.Logf("screenshot: %s (%d bytes)", filepath.Join(out, name), len(png))
+}
+
+// TestReviewInBrowser is a lead's review in headless Chromium: the threshold slider recounts, the list
+// sorts, the step chart is drawn, two findings are marked "not a contradiction" and exported, and the
+// export reads back as labelled replies that gainsay eval scores.
+func TestReviewInBrowser(t *testing.T) {
+	driver, browser := lookPath("GAINSAY_CHROMEDRIVER", "chromedriver"), lookPath("GAINSAY_CHROMIUM", "chromium")
+	if driver == "" || browser == "" {
+		if os.Getenv("GAINSAY_REQUIRE_BROWSER") == "1" {
+			t.Fatal("chromium and chromedriver are required (apt-get install chromium chromium-driver)")
+		}
+		t.Skip("no chromium/chromedriver; `make test` installs them")
+	}
+	dir := t.TempDir()
+	page := filepath.Join(dir, "review.html")
+	prof, err := profile.ReadProfile("testdata/profile.yaml", profile.FormatAuto)
+	require.NoError(t, err)
+	p, err := Build(prof, []string{"testdata/steps.jsonl"}, Options{})
+	require.NoError(t, err)
+	var buf bytes.Buffer
+	require.NoError(t, Render(&buf, p))
+	require.NoError(t, os.WriteFile(page, buf.Bytes(), 0o644))
+	wd := startDriver(t, driver, browser, dir)
+	wd.call(t, "POST", "/url", map[string]any{"url": "file://" + page})
+	var logs []struct{ Level, Message string }
+	wd.callInto(t, "POST", "/se/log", map[string]any{"type": "browser"}, &logs)
+	for _, l := range logs {
+		if l.Level == "SEVERE" || l.Level == "ERROR" {
+			t.Errorf("console: %s %s", l.Level, l.Message)
+		}
+	}
+	flaggedAt := func() int {
+		var n int
+		wd.callInto(t, "POST", "/execute/sync", script(`return parseInt(document.querySelector('#threshold-counts tbody tr').getAttribute('data-flagged'), 10)`), &n)
+		return n
+	}
+	assert.Equal(t, p.Flagged, flaggedAt(), "at the run's threshold the slider counts every flagged reply")
+	// Move the slider as a person would (keyboard: End takes it to 1.00).
+	wd.call(t, "POST", "/element/"+wd.element(t, "#threshold-range")+"/value", map[string]any{"text": "\uE010"})
+	var value string
+	wd.callInto(t, "POST", "/execute/sync", script(`return document.getElementById('threshold-value').textContent`), &value)
+	assert.Equal(t, "1.00", value)
+	assert.Less(t, flaggedAt(), p.Flagged, "a higher threshold flags fewer replies")
+	var visible int
+	wd.callInto(t, "POST", "/execute/sync", script(`return Array.from(document.querySelectorAll('#items > li')).filter(li => li.offsetParent !== null).length`), &visible)
+	assert.Equal(t, flaggedAt(), visible, "the list shows the replies flagged at the slider's threshold")
+	wd.call(t, "POST", "/element/"+wd.element(t, "#threshold-range")+"/value", map[string]any{"text": "\uE011"}) // Home: back down
+
+	// Sort: lowest score first, over the consistent replies too.
+	wd.call(t, "POST", "/element/"+wd.element(t, "#show-consistent")+"/click", map[string]any{})
+	wd.call(t, "POST", "/element/"+wd.element(t, "#sort option[value='score-asc']")+"/click", map[string]any{})
+	var scores []float64
+	wd.callInto(t, "POST", "/execute/sync", script(`return Array.from(document.querySelectorAll('#items > li')).filter(li => li.offsetParent !== null).map(li => parseFloat(li.getAttribute('data-score')))`), &scores)
+	require.Len(t, scores, 20, "every reply shown")
+	for i := 1; i < len(scores); i++ {
+		assert.LessOrEqual(t, scores[i-1], scores[i], "ascending at %d", i)
+	}
+	// The step chart is drawn, one point per step.
+	var points int
+	wd.callInto(t, "POST", "/execute/sync", script(`return document.querySelectorAll('#step-chart .step-point circle').length`), &points)
+	assert.Equal(t, 4, points)
+
+	// Mark two findings "not a contradiction" and export.
+	wd.call(t, "POST", "/element/"+wd.element(t, "#sort option[value='score-desc']")+"/click", map[string]any{})
+	var buttons []map[string]string
+	wd.callInto(t, "POST", "/elements", map[string]any{"using": "css selector", "value": "#items button.review"}, &buttons)
+	require.GreaterOrEqual(t, len(buttons), 2)
+	for _, b := range buttons[:2] {
+		for _, id := range b {
+			wd.call(t, "POST", "/element/"+id+"/click", map[string]any{})
+		}
+	}
+	var marked string
+	wd.callInto(t, "POST", "/execute/sync", script(`return document.getElementById('review-count').textContent`), &marked)
+	assert.Equal(t, "2 marked", marked)
+	var exported string
+	wd.callInto(t, "POST", "/execute/sync", script(`return window.gainsayReview()`), &exported)
+	require.NotEmpty(t, exported)
+	wd.call(t, "POST", "/element/"+wd.element(t, "#export")+"/click", map[string]any{})
+	var href string
+	wd.callInto(t, "POST", "/execute/sync", script(`return document.getElementById('export-link').href`), &href)
+	assert.True(t, strings.HasPrefix(href, "blob:"), "the export is offered as a download")
+	screenshot(t, wd, "review.png")
+
+	path := filepath.Join(dir, "review.jsonl")
+	require.NoError(t, os.WriteFile(path, []byte(exported), 0o644))
+	items, err := eval.ReadLabelledReplies(path)
+	require.NoError(t, err, "the export reads as labelled replies")
+	require.NotEmpty(t, items)
+	for _, it := range items {
+		assert.Contains(t, []string{"contradiction", "consistent"}, it.Label)
+	}
+	m, err := nli.OpenDir("../nli/testdata/tiny-wordpiece", nli.Options{})
+	require.NoError(t, err)
+	defer m.Close()
+	rep, err := eval.Replies(&gainsay.Checker{Scorer: &nli.Scorer{Model: m}}, []eval.Character{{Profile: prof, Replies: items}}, 0)
+	require.NoError(t, err, "gainsay eval scores the review")
+	assert.Equal(t, len(items), rep.Items)
 }
 
 func lookPath(env, name string) string {

@@ -3,11 +3,19 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/gainsay/gainsay/internal/rates"
 )
 
-// palette: the Okabe-Ito colours (Okabe and Ito 2008), chosen because they stay distinct for the
-// common forms of colour blindness; one per input file.
-var palette = []string{"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#56B4E9", "#E69F00", "#000000"}
+// color is input file i's colour: the Okabe-Ito colours (Okabe and Ito 2008), chosen because they
+// stay distinct for the common forms of colour blindness.
+func color(i int) string {
+	palette := [...]string{"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#56B4E9", "#E69F00", "#000000"}
+	return palette[i%len(palette)]
+}
 
 // Chart is the per-fact bar chart, laid out in SVG user units.
 type Chart struct {
@@ -152,4 +160,91 @@ func shorten(s string, n int) string {
 		return s
 	}
 	return string(r[:n-1]) + "…"
+}
+
+// StepChart is the contradiction rate per training step, one line per file, with 95% Wilson
+// intervals as whiskers, laid out in SVG user units.
+type StepChart struct {
+	Width, Height int
+	Base, Left    float64
+	Ticks         []Tick // X holds the y coordinate
+	XTicks        []Tick
+	Lines         []StepLine
+}
+
+// StepLine is one file's rates by step.
+type StepLine struct {
+	Color, Name string
+	Path        string
+	Points      []StepPoint
+}
+
+// StepPoint is one step.
+type StepPoint struct {
+	X, Y, LowY, HighY float64
+	Title             string
+}
+
+func stepChart(p *Page, steps map[int]map[float64]*stepCount) *StepChart {
+	if len(steps) == 0 {
+		return nil
+	}
+	var all []float64
+	top := 0.0
+	for _, m := range steps {
+		for s, c := range m {
+			if !slices.Contains(all, s) {
+				all = append(all, s)
+			}
+			top = math.Max(top, rates.NewRate(c.k, c.n).CI.High)
+		}
+	}
+	slices.Sort(all)
+	maxV, step := axis(top)
+	const plotH, plotW, left = 180.0, 560.0, 48.0
+	base := plotH + 16
+	c := &StepChart{Width: int(left + plotW + 24), Height: int(base + 40), Base: base, Left: left}
+	lo, hi := all[0], all[len(all)-1]
+	xOf := func(s float64) float64 {
+		if hi == lo {
+			return left + plotW/2
+		}
+		return left + plotW*(s-lo)/(hi-lo)
+	}
+	yOf := func(v float64) float64 { return base - plotH*v/maxV }
+	for v := 0.0; v <= maxV+1e-9; v += step {
+		c.Ticks = append(c.Ticks, Tick{X: yOf(v), Label: tickLabel(v)})
+	}
+	for i, s := range all {
+		if len(all) <= 8 || i%((len(all)+7)/8) == 0 || i == len(all)-1 {
+			c.XTicks = append(c.XTicks, Tick{X: xOf(s), Label: strconv.FormatFloat(s, 'f', -1, 64)})
+		}
+	}
+	for fi := range p.Files {
+		m := steps[fi]
+		if len(m) == 0 {
+			continue
+		}
+		l := StepLine{Color: p.Files[fi].Color, Name: p.Files[fi].Name}
+		var d strings.Builder
+		for _, s := range all {
+			sc, ok := m[s]
+			if !ok {
+				continue
+			}
+			r := rates.NewRate(sc.k, sc.n)
+			pt := StepPoint{X: xOf(s), Y: yOf(r.Rate), LowY: yOf(r.CI.Low), HighY: yOf(r.CI.High),
+				Title: fmt.Sprintf("%s, step %s: %d of %d replies, %.1f%% (95%% interval %.1f%% to %.1f%%)",
+					l.Name, strconv.FormatFloat(s, 'f', -1, 64), r.K, r.N, 100*r.Rate, 100*r.CI.Low, 100*r.CI.High)}
+			if d.Len() == 0 {
+				fmt.Fprintf(&d, "M%.1f %.1f", pt.X, pt.Y)
+			} else {
+				fmt.Fprintf(&d, "L%.1f %.1f", pt.X, pt.Y)
+			}
+			l.Points = append(l.Points, pt)
+		}
+		l.Path = d.String()
+		c.Lines = append(c.Lines, l)
+	}
+	return c
 }

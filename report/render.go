@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"html/template"
 	"io"
+	"strings"
 )
 
 //go:embed page.html.tmpl
@@ -18,6 +19,7 @@ var page = template.Must(template.New("page").Funcs(template.FuncMap{
 	"subf":    func(a, b float64) float64 { return a - b },
 	"addf":    func(a, b float64) float64 { return a + b },
 	"shorten": shorten,
+	"join":    strings.Join,
 }).Parse(pageTemplate))
 
 // Render writes the page as HTML.

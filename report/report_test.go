@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -95,10 +96,23 @@ func TestStructure(t *testing.T) {
 		assert.Len(t, find(r, hasClass("bar")), 2)
 	}
 	assert.NotNil(t, p.Trend, "a per-file chart for several files")
-	// Items: every flagged reply, worst first; one mark per span in the data.
-	items := find(doc, hasClass("item"))
+	// Items: every reply, the flagged ones worst first, the others collapsed; one mark per span in the
+	// data, its weight printed beside it; the file and line of each.
+	items := find(doc, hasClass("flagged"))
 	require.Len(t, items, p.Flagged)
 	assert.Equal(t, 4, p.Flagged)
+	others := find(doc, func(n *html.Node) bool { return hasClass("consistent")(n) || hasClass("unreadable")(n) })
+	assert.Len(t, others, p.Others)
+	assert.Equal(t, 4, p.Others, "three consistent replies and one unreadable")
+	for _, o := range others {
+		assert.Len(t, find(o, tag("details")), 1, "collapsed")
+	}
+	assert.Contains(t, text(items[0]), "step100.jsonl:")
+	assert.Len(t, find(doc, hasClass("w")), len(find(doc, tag("mark"))), "a weight beside every mark")
+	legend := find(doc, func(n *html.Node) bool { return attr(n, "id") == "legend" })
+	require.Len(t, legend, 1)
+	assert.Contains(t, text(legend[0]), "share of the pair's contradiction odds")
+	assert.Nil(t, p.Steps, "no steps in these records")
 	prev := 2.0
 	spans := 0
 	for i, it := range p.Items {
@@ -116,7 +130,7 @@ func TestStructure(t *testing.T) {
 			}
 		}
 	}
-	assert.Len(t, find(doc, tag("mark")), spans)
+	assert.Len(t, find(doc, tag("mark")), spans+2, "the spans and the legend's two examples")
 	// Reply text is escaped, never markup.
 	assert.NotContains(t, raw, "<script>alert(1)</script>")
 	assert.Empty(t, find(doc, func(n *html.Node) bool { return n.Data == "b" && text(n) == "lit" }))
@@ -130,8 +144,9 @@ func TestStructure(t *testing.T) {
 	controls := find(doc, func(n *html.Node) bool { return attr(n, "id") == "controls" })
 	require.Len(t, controls, 1)
 	assert.True(t, hasAttr(controls[0], "hidden"))
-	options := find(controls[0], tag("option"))
-	assert.Len(t, options, 3, "all facts + one per fact")
+	filter := find(controls[0], func(n *html.Node) bool { return attr(n, "id") == "fact-filter" })
+	require.Len(t, filter, 1)
+	assert.Len(t, find(filter[0], tag("option")), 3, "all facts + one per fact")
 }
 
 func hasAttr(n *html.Node, key string) bool {
@@ -163,7 +178,7 @@ func TestCapKeepsChartsExact(t *testing.T) {
 	p, doc, _ := build(t, []string{path}, Options{MaxList: 50})
 	assert.Equal(t, 7500, p.Flagged)
 	assert.Equal(t, 50, p.Shown)
-	assert.Len(t, find(doc, hasClass("item")), 50)
+	assert.Len(t, find(doc, hasClass("flagged")), 50)
 	note := find(doc, func(n *html.Node) bool { return attr(n, "id") == "cap-note" })
 	require.Len(t, note, 1)
 	assert.Contains(t, text(note[0]), "Showing the 50 highest-scoring of 7500 flagged replies")
@@ -181,4 +196,19 @@ func TestAxis(t *testing.T) {
 		assert.InDelta(t, c.step, step, 1e-12, "top %v", c.top)
 		assert.InDelta(t, c.end, end, 1e-9, "top %v", c.top)
 	}
+}
+
+func TestStepChartAndCounts(t *testing.T) {
+	p, doc, _ := build(t, []string{"testdata/steps.jsonl"}, Options{})
+	require.NotNil(t, p.Steps)
+	require.Len(t, p.Steps.Lines, 1)
+	assert.Len(t, p.Steps.Lines[0].Points, 4, "one point per step")
+	assert.Len(t, find(doc, hasClass("step-point")), 4)
+	assert.Contains(t, text(find(doc, hasClass("step-point"))[0]), "step 100: ")
+	// The slider's data counts every readable reply and every flagged one.
+	var counts []fileCounts
+	require.NoError(t, json.Unmarshal([]byte(p.Counts), &counts))
+	require.Len(t, counts, 1)
+	assert.Equal(t, 20, counts[0].N)
+	assert.Len(t, counts[0].Flagged, p.Flagged)
 }

@@ -10,16 +10,20 @@ import (
 )
 
 func newReportCmd() *cobra.Command {
-	var profilePath, outPath, title string
+	var profilePath, outPath, title, stepField string
 	var maxList int
 	c := &cobra.Command{
 		Use:   "report OUT.jsonl [MORE.jsonl ...] --profile P -o report.html",
 		Short: "Write one self-contained HTML page showing where and how often replies break character",
 		Long: `report reads the records of gainsay check (one file per checkpoint, say) and writes a single HTML file
-with no outside resources: counts and contradiction rates with 95% intervals, a chart of the rate per
-fact (one bar per file), the rate per file when there are several, and the flagged replies worst first
-with their culprit words highlighted, filterable by fact and by text. Long runs are capped at --max-list
-replies in the list; counts and charts always include every record.`,
+with no outside resources, for reviewing a training run: counts and contradiction rates with 95%
+intervals, the rate per fact (one bar per file), per file when there are several, and per training step
+when records carry one (--step-field, default "step", an input field check passed through); a threshold
+slider that recounts every record; every reply, the flagged ones worst first with their culprit words
+highlighted and weighed, the others collapsed, each with its file and line, sortable and filterable
+by fact and text. Each finding can be marked "not a contradiction"; the marks export as labelled
+replies that gainsay eval --format replies reads. Long runs are capped at --max-list replies of each
+kind in the list; counts, charts and the slider always include every record.`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if profilePath == "" || outPath == "" {
@@ -29,7 +33,7 @@ replies in the list; counts and charts always include every record.`,
 			if err != nil {
 				return unusable(err)
 			}
-			page, err := report.Build(prof, args, report.Options{MaxList: maxList, Title: title})
+			page, err := report.Build(prof, args, report.Options{MaxList: maxList, Title: title, StepField: stepField})
 			if err != nil {
 				return unusable(err)
 			}
@@ -51,6 +55,7 @@ replies in the list; counts and charts always include every record.`,
 	c.Flags().StringVar(&profilePath, "profile", "", "the character profile the records were checked against")
 	c.Flags().StringVarP(&outPath, "out", "o", "", "the HTML file to write")
 	c.Flags().StringVar(&title, "title", "", "page title (default: from the character)")
-	c.Flags().IntVar(&maxList, "max-list", report.DefaultMaxList, "flagged replies listed at most")
+	c.Flags().IntVar(&maxList, "max-list", report.DefaultMaxList, "flagged replies listed at most (and consistent ones)")
+	c.Flags().StringVar(&stepField, "step-field", "step", "the input field that holds a record's training step")
 	return c
 }
