@@ -58,7 +58,7 @@ fuzz:
 
 # Timings live here, never in pass/fail tests.
 bench: build
-	$(GO) test -run '^$$' -bench . -benchtime 3x ./nli ./internal/serve
+	$(GO) test -run '^$$' -bench . -benchtime 3x ./nli ./serve ./models/builtin
 	scripts/bench.sh
 
 clean:

@@ -191,6 +191,10 @@ func (m *Model) RunTime() time.Duration { return m.session.RunTime() }
 // Rows is the number of encoded pairs run so far (each reading and each attribution variant counts).
 func (m *Model) Rows() int64 { return m.session.Rows() }
 
+// Padding is the share of the tokens run so far that were padding (batches are padded to their
+// longest pair; pairs of similar length are batched together to keep this small).
+func (m *Model) Padding() float64 { return m.session.Padding() }
+
 // SHA256 is the hex SHA-256 of model.onnx.
 func (m *Model) SHA256() string { return m.sha256 }
 

@@ -20,6 +20,8 @@ type Session struct {
 	width   int          // columns of the output
 	runNano atomic.Int64 // time inside Run, for benchmarks
 	rows    atomic.Int64 // rows run
+	tokens  atomic.Int64 // real tokens run
+	cells   atomic.Int64 // tokens and padding run
 }
 
 // Open loads model data. The output is the one named want, else the model's only output; it must be
@@ -140,6 +142,10 @@ func (s *Session) Run(rows []Row, pad int64) ([]float32, error) {
 	err := s.s.Run(values, outputs)
 	s.runNano.Add(int64(time.Since(start)))
 	s.rows.Add(int64(b))
+	s.cells.Add(int64(b * n))
+	for _, r := range rows {
+		s.tokens.Add(int64(len(r.IDs)))
+	}
 	if err != nil {
 		return nil, fmt.Errorf("onnxruntime: %w", err)
 	}
@@ -159,6 +165,14 @@ func (s *Session) RunTime() time.Duration { return time.Duration(s.runNano.Load(
 
 // Rows is the number of rows run so far.
 func (s *Session) Rows() int64 { return s.rows.Load() }
+
+// Padding is the share of the tokens run so far that were padding.
+func (s *Session) Padding() float64 {
+	if c := s.cells.Load(); c > 0 {
+		return 1 - float64(s.tokens.Load())/float64(c)
+	}
+	return 0
+}
 
 // Close releases the session once the runs in progress are done; later runs fail.
 func (s *Session) Close() error {
