@@ -16,10 +16,11 @@ import (
 // Verdict is the judgement on a whole reply.
 type Verdict string
 
+// The verdicts.
 const (
-	Contradiction Verdict = "contradiction"
-	Consistent    Verdict = "consistent"
-	Failed        Verdict = "error"
+	Contradiction Verdict = "contradiction" // at least one pair at or above the threshold
+	Consistent    Verdict = "consistent"    // none
+	Failed        Verdict = "error"         // the reply could not be read or scored
 )
 
 // Prob is a probability or weight, written with at most 6 decimals so that output bytes do not depend

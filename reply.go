@@ -27,10 +27,11 @@ func inputErr(file string, line int, field, format string, args ...any) *InputEr
 // Format names a replies format.
 type Format string
 
+// The replies formats.
 const (
-	FormatAuto  Format = ""
-	FormatJSONL Format = "jsonl"
-	FormatText  Format = "text"
+	FormatAuto  Format = ""      // from the file name (ReplyFormat)
+	FormatJSONL Format = "jsonl" // one JSON object a line
+	FormatText  Format = "text"  // one reply a line
 )
 
 // Reply is one sampled reply to check. A reply that could not be read has Err set: it still gets its

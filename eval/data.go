@@ -50,8 +50,9 @@ type Item struct {
 // Format names an evaluation data format.
 type Format string
 
+// The evaluation data formats.
 const (
-	FormatAuto       Format = ""
+	FormatAuto       Format = ""           // from the path (DetectFormat)
 	FormatPairs      Format = "pairs"      // gainsay's JSON Lines: premise, hypothesis, label, optional culprits
 	FormatReplies    Format = "replies"    // gainsay's JSON Lines: id, text, label, optional culprits (needs a profile)
 	FormatCharacters Format = "characters" // a folder of NAME.yaml profiles beside NAME.jsonl labelled replies

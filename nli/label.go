@@ -8,6 +8,7 @@ import (
 // Label is one of the three NLI labels.
 type Label int
 
+// The labels, in the order of Probs' fields.
 const (
 	Contradiction Label = iota
 	Entailment
@@ -17,6 +18,7 @@ const (
 // Labels are the three labels, in the order of Probs' fields.
 func Labels() []Label { return []Label{Contradiction, Entailment, Neutral} }
 
+// String is the label's name in lower case, as config.json and the data sets write it.
 func (l Label) String() string {
 	switch l {
 	case Contradiction:

@@ -34,14 +34,15 @@ type Fact struct {
 	idLine, textLine int // where the id and text values stand, for messages
 }
 
-// Format names an input format.
+// Format names a profile format.
 type Format string
 
+// The profile formats.
 const (
-	FormatAuto Format = ""
-	FormatYAML Format = "yaml"
-	FormatJSON Format = "json"
-	FormatText Format = "text"
+	FormatAuto Format = ""     // from the extension (ReadProfile)
+	FormatYAML Format = "yaml" // character and facts
+	FormatJSON Format = "json" // the same, in JSON
+	FormatText Format = "text" // one fact a line
 )
 
 // ReadProfile reads a profile file: YAML (.yaml, .yml), JSON (.json) or plain text (.txt: one fact a

@@ -12,6 +12,7 @@ type Error struct {
 	Msg   string
 }
 
+// Error says "file:line: field: message".
 func (e *Error) Error() string {
 	loc := e.File
 	if e.Line > 0 {

@@ -114,8 +114,8 @@ def decode_held_out(seg1: str, seg2: str) -> bool:
     return int(hashlib.sha256((seg1 + "\t" + seg2).encode("utf-8")).hexdigest()[:8], 16) % 5 == 0
 
 
-def _tsv(path: str) -> list[dict]:
-    with open(path, encoding="utf-8", newline="") as f:
+def _tsv(path: str, encoding: str = "utf-8") -> list[dict]:
+    with open(path, encoding=encoding, newline="") as f:
         return list(csv.DictReader(f, delimiter="\t", quoting=csv.QUOTE_NONE))
 
 
@@ -223,6 +223,30 @@ def held_out_sets() -> dict[str, list[Pair]]:
     }
 
 
+def anli_test() -> list[Pair]:
+    """Adversarial NLI test rounds 1-3 (CC BY-NC 4.0: evaluation only)."""
+    out = []
+    with open(os.path.join(data_dir(), "anli_test", "test.jsonl"), encoding="utf-8") as f:
+        for i, line in enumerate(f, start=1):
+            d = json.loads(line)
+            if d["label"] in LABELS:
+                out.append(Pair(d["premise"], d["hypothesis"], d["label"], f"anli:{d.get('tag', '')}:{i}"))
+    return out
+
+
+def negation_nli(name: str) -> list[Pair]:
+    """The negation benchmarks (SNLI, MNLI, RTE rows rewritten with negations); labels c/e/n or words."""
+    short = {"c": "contradiction", "e": "entailment", "n": "neutral"}
+    out = []
+    # The MNLI file has a few Windows-1252 quotes among its UTF-8; read bytes as Latin-1 there.
+    enc = "utf-8" if name != "MNLI" else "latin-1"
+    for i, r in enumerate(_tsv(os.path.join(data_dir(), "negation_nli", f"{name}.txt"), enc), start=2):
+        y = short.get(r["gold_label"].strip(), r["gold_label"].strip())
+        if y in LABELS:
+            out.append(Pair(r["Text"].strip(), r["Hypothesis"].strip(), y, f"negation-{name}:{i}"))
+    return out
+
+
 def persona_held_out_sets(persona_heldout: str | None = None) -> dict[str, list[Pair]]:
     """The held-out sets of the persona-domain data (see the module doc)."""
     dec = decode(held_out=True)
@@ -231,6 +255,9 @@ def persona_held_out_sets(persona_heldout: str | None = None) -> dict[str, list[
         "decode-held-out-unrelated": decode_unrelated(dec),
         "decode-held-out-consistent": decode_consistent(held_out=True),
         "dialogue-bnc-test": dialogue_bnc("test"),
+        "anli-test": anli_test(),
+        "negation-snli": negation_nli("SNLI"),
+        "negation-mnli": negation_nli("MNLI"),
     }
     if persona_heldout:
         sets["persona-generated-held-out"] = persona(persona_heldout)
