@@ -30,13 +30,7 @@ import (
 // the others, and a screenshot goes to $GAINSAY_TEST_OUT (default: out/browser at the repository root).
 // Without the browser the test is skipped, unless GAINSAY_REQUIRE_BROWSER=1.
 func TestInBrowser(t *testing.T) {
-	driver, browser := lookPath("GAINSAY_CHROMEDRIVER", "chromedriver"), lookPath("GAINSAY_CHROMIUM", "chromium")
-	if driver == "" || browser == "" {
-		if os.Getenv("GAINSAY_REQUIRE_BROWSER") == "1" {
-			t.Fatal("chromium and chromedriver are required (apt-get install chromium chromium-driver)")
-		}
-		t.Skip("no chromium/chromedriver; `make test` installs them")
-	}
+	driver, browser := browserOrSkip(t)
 	dir := t.TempDir()
 	page := filepath.Join(dir, "report.html")
 	prof, err := profile.ReadProfile("testdata/profile.yaml", profile.FormatAuto)
@@ -60,13 +54,7 @@ func TestInBrowser(t *testing.T) {
 	wd := startDriver(t, driver, browser, dir)
 	wd.call(t, "POST", "/url", map[string]any{"url": "file://" + page})
 
-	var logs []struct{ Level, Message string }
-	wd.callInto(t, "POST", "/se/log", map[string]any{"type": "browser"}, &logs)
-	for _, l := range logs {
-		if l.Level == "SEVERE" || l.Level == "ERROR" {
-			t.Errorf("console: %s %s", l.Level, l.Message)
-		}
-	}
+	noConsoleErrors(t, wd)
 	var marks int
 	wd.callInto(t, "POST", "/execute/sync", script("return document.querySelectorAll('#items mark').length"), &marks)
 	assert.Equal(t, spans, marks, "one highlight per span")
@@ -123,13 +111,7 @@ func screenshot(t *testing.T, wd *webDriver, name string) {
 // sorts, the step chart is drawn, two findings are marked "not a contradiction" and exported, and the
 // export reads back as labelled replies that gainsay eval scores.
 func TestReviewInBrowser(t *testing.T) {
-	driver, browser := lookPath("GAINSAY_CHROMEDRIVER", "chromedriver"), lookPath("GAINSAY_CHROMIUM", "chromium")
-	if driver == "" || browser == "" {
-		if os.Getenv("GAINSAY_REQUIRE_BROWSER") == "1" {
-			t.Fatal("chromium and chromedriver are required (apt-get install chromium chromium-driver)")
-		}
-		t.Skip("no chromium/chromedriver; `make test` installs them")
-	}
+	driver, browser := browserOrSkip(t)
 	dir := t.TempDir()
 	page := filepath.Join(dir, "review.html")
 	prof, err := profile.ReadProfile("testdata/profile.yaml", profile.FormatAuto)
@@ -141,13 +123,7 @@ func TestReviewInBrowser(t *testing.T) {
 	require.NoError(t, os.WriteFile(page, buf.Bytes(), 0o644))
 	wd := startDriver(t, driver, browser, dir)
 	wd.call(t, "POST", "/url", map[string]any{"url": "file://" + page})
-	var logs []struct{ Level, Message string }
-	wd.callInto(t, "POST", "/se/log", map[string]any{"type": "browser"}, &logs)
-	for _, l := range logs {
-		if l.Level == "SEVERE" || l.Level == "ERROR" {
-			t.Errorf("console: %s %s", l.Level, l.Message)
-		}
-	}
+	noConsoleErrors(t, wd)
 	flaggedAt := func() int {
 		var n int
 		wd.callInto(t, "POST", "/execute/sync", script(`return parseInt(document.querySelector('#threshold-counts tbody tr').getAttribute('data-flagged'), 10)`), &n)
@@ -215,6 +191,30 @@ func TestReviewInBrowser(t *testing.T) {
 	rep, err := eval.Replies(&gainsay.Checker{Scorer: &nli.Scorer{Model: m}}, []eval.Character{{Profile: prof, Replies: items}}, 0)
 	require.NoError(t, err, "gainsay eval scores the review")
 	assert.Equal(t, len(items), rep.Items)
+}
+
+// noConsoleErrors fails the test for errors in the browser's console.
+func noConsoleErrors(t *testing.T, wd *webDriver) {
+	var logs []struct{ Level, Message string }
+	wd.callInto(t, "POST", "/se/log", map[string]any{"type": "browser"}, &logs)
+	for _, l := range logs {
+		if l.Level == "SEVERE" || l.Level == "ERROR" {
+			t.Errorf("console: %s %s", l.Level, l.Message)
+		}
+	}
+}
+
+// browserOrSkip finds ChromeDriver and Chromium, or skips the test (fails it with
+// GAINSAY_REQUIRE_BROWSER=1).
+func browserOrSkip(t *testing.T) (driver, browser string) {
+	driver, browser = lookPath("GAINSAY_CHROMEDRIVER", "chromedriver"), lookPath("GAINSAY_CHROMIUM", "chromium")
+	if driver == "" || browser == "" {
+		if os.Getenv("GAINSAY_REQUIRE_BROWSER") == "1" {
+			t.Fatal("chromium and chromedriver are required (apt-get install chromium chromium-driver)")
+		}
+		t.Skip("no chromium/chromedriver; `make test` installs them")
+	}
+	return driver, browser
 }
 
 func lookPath(env, name string) string {

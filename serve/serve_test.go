@@ -218,6 +218,20 @@ func TestGracefulShutdownFinishesInFlight(t *testing.T) {
 	go srv.Serve(ln)
 	url := "http://" + ln.Addr().String()
 
+	// Shut down only once the request is being worked on.
+	done := postInFlight(t, svc, url)
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	require.NoError(t, srv.Shutdown(ctx))
+	svc.Close()
+	assert.Equal(t, http.StatusOK, <-done, "the request in flight was answered")
+	_, err = http.Post(url+"/v1/check", "application/json", strings.NewReader("{}"))
+	assert.Error(t, err, "no new connections after shutdown")
+}
+
+// postInFlight sends a request in the background and returns once the service is working on it; the
+// channel gets its status (-1: no answer).
+func postInFlight(t *testing.T, svc *Server, url string) chan int {
 	done := make(chan int, 1)
 	go func() {
 		resp, err := http.Post(url+"/v1/check", "application/json", bytes.NewReader(mustJSON(request(0, 0, 2))))
@@ -228,18 +242,11 @@ func TestGracefulShutdownFinishesInFlight(t *testing.T) {
 		resp.Body.Close()
 		done <- resp.StatusCode
 	}()
-	// Shut down only once the request is being worked on.
 	for deadline := time.Now().Add(10 * time.Second); svc.inflight.Load() == 0; {
 		require.True(t, time.Now().Before(deadline), "the request never arrived")
 		time.Sleep(5 * time.Millisecond)
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-	defer cancel()
-	require.NoError(t, srv.Shutdown(ctx))
-	svc.Close()
-	assert.Equal(t, http.StatusOK, <-done, "the request in flight was answered")
-	_, err = http.Post(url+"/v1/check", "application/json", strings.NewReader("{}"))
-	assert.Error(t, err, "no new connections after shutdown")
+	return done
 }
 
 func mustJSON(v any) []byte {
@@ -317,20 +324,7 @@ func TestShutdownAnswersWhatGraceLeavesRunning(t *testing.T) {
 	require.NoError(t, err)
 	srv := &http.Server{Handler: svc.Handler()}
 	go srv.Serve(ln)
-	done := make(chan int, 1)
-	go func() {
-		resp, err := http.Post("http://"+ln.Addr().String()+"/v1/check", "application/json", bytes.NewReader(mustJSON(request(0, 0, 2))))
-		if err != nil {
-			done <- -1
-			return
-		}
-		resp.Body.Close()
-		done <- resp.StatusCode
-	}()
-	for deadline := time.Now().Add(10 * time.Second); svc.inflight.Load() == 0; {
-		require.True(t, time.Now().Before(deadline), "the request never arrived")
-		time.Sleep(5 * time.Millisecond)
-	}
+	done := postInFlight(t, svc, "http://"+ln.Addr().String())
 	grace := 300 * time.Millisecond
 	start := time.Now()
 	require.NoError(t, svc.Shutdown(srv, grace))

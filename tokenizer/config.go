@@ -54,6 +54,24 @@ func componentType(raw json.RawMessage) (string, error) {
 	return head.Type, nil
 }
 
+// build reads the component at path: none where it is absent or null, else the one its type names,
+// made by newFn; errors name the component.
+func build[T any](raw json.RawMessage, path string, none T, newFn func(typ string, raw json.RawMessage, path string) (T, error)) (T, error) {
+	if isNull(raw) {
+		return none, nil
+	}
+	var zero T
+	typ, err := componentType(raw)
+	if err != nil {
+		return zero, errAt(path, "", err)
+	}
+	c, err := newFn(typ, raw, path)
+	if err != nil {
+		return zero, errAt(path, typ, err)
+	}
+	return c, nil
+}
+
 // decodeStrict decodes a component's object into its typed configuration; a field that the type
 // does not know is an error, so that a setting this package would ignore is never ignored silently.
 func decodeStrict(raw json.RawMessage, v any) error {

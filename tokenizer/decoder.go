@@ -19,18 +19,7 @@ type decoderFunc func([]string) []string
 func (f decoderFunc) decodeChain(t []string) []string { return f(t) }
 
 func buildDecoder(raw json.RawMessage, path string) (decoder, error) {
-	if isNull(raw) {
-		return decoderFunc(func(t []string) []string { return t }), nil
-	}
-	typ, err := componentType(raw)
-	if err != nil {
-		return nil, errAt(path, "", err)
-	}
-	d, err := newDecoder(typ, raw, path)
-	if err != nil {
-		return nil, errAt(path, typ, err)
-	}
-	return d, nil
+	return build(raw, path, decoder(decoderFunc(func(t []string) []string { return t })), newDecoder)
 }
 
 func newDecoder(typ string, raw json.RawMessage, path string) (decoder, error) {

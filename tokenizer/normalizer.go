@@ -22,21 +22,10 @@ type normalizerFunc func(text) text
 
 func (f normalizerFunc) normalize(t text) (text, error) { return f(t), nil }
 
-var identity = normalizerFunc(func(t text) text { return t })
+func identity() normalizer { return normalizerFunc(func(t text) text { return t }) }
 
 func buildNormalizer(raw json.RawMessage, path string) (normalizer, error) {
-	if isNull(raw) {
-		return identity, nil
-	}
-	typ, err := componentType(raw)
-	if err != nil {
-		return nil, errAt(path, "", err)
-	}
-	n, err := newNormalizer(typ, raw, path)
-	if err != nil {
-		return nil, errAt(path, typ, err)
-	}
-	return n, nil
+	return build(raw, path, identity(), newNormalizer)
 }
 
 func newNormalizer(typ string, raw json.RawMessage, path string) (normalizer, error) {
@@ -257,7 +246,7 @@ type precompiled struct {
 
 func newPrecompiled(b64 string) (normalizer, error) {
 	if b64 == "" {
-		return identity, nil
+		return identity(), nil
 	}
 	data, err := spm.FromBase64(b64)
 	if err != nil {

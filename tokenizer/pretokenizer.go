@@ -179,18 +179,8 @@ func isWordChar(r rune) bool {
 const gpt2Pattern = `'s|'t|'re|'ve|'m|'ll|'d| ?\p{L}+| ?\p{N}+| ?[^\s\p{L}\p{N}]+|\s+(?!\S)|\s+`
 
 func buildPreTokenizer(raw json.RawMessage, path string) (preTokenizer, error) {
-	if isNull(raw) {
-		return preTokenizerFunc(func(s []segment) ([]segment, error) { return s, nil }), nil
-	}
-	typ, err := componentType(raw)
-	if err != nil {
-		return nil, errAt(path, "", err)
-	}
-	p, err := newPreTokenizer(typ, raw, path)
-	if err != nil {
-		return nil, errAt(path, typ, err)
-	}
-	return p, nil
+	none := preTokenizerFunc(func(s []segment) ([]segment, error) { return s, nil })
+	return build(raw, path, preTokenizer(none), newPreTokenizer)
 }
 
 func newPreTokenizer(typ string, raw json.RawMessage, path string) (preTokenizer, error) {

@@ -23,19 +23,30 @@ func gainsayCommand(t *testing.T) string {
 	return bin
 }
 
+// writeRun writes a two-fact profile and n replies (a blank line before every blankEvery-th, 0: none)
+// into dir.
+func writeRun(t *testing.T, dir string, n, blankEvery int) (prof, replies string) {
+	t.Helper()
+	prof = filepath.Join(dir, "p.yaml")
+	require.NoError(t, os.WriteFile(prof, []byte("character: c\nfacts:\n  - {id: swim, text: I swim in the sea every morning.}\n  - {id: home, text: I live in the lighthouse.}\n"), 0o644))
+	var in bytes.Buffer
+	texts := []string{"I have never seen the sea.", "The gulls are loud. Fog again.", "Never, not once, have I swum.", "Zürich is far from here."}
+	for i := range n {
+		if blankEvery > 0 && i%blankEvery == 0 {
+			in.WriteString("\n") // blank lines move line numbers away from reply counts
+		}
+		fmt.Fprintf(&in, "{\"id\": \"r%d\", \"text\": %q}\n", i, texts[i%len(texts)])
+	}
+	replies = filepath.Join(dir, "r.jsonl")
+	require.NoError(t, os.WriteFile(replies, in.Bytes(), 0o644))
+	return prof, replies
+}
+
 // A run killed with SIGKILL at several points and resumed ends with the bytes of an uninterrupted run.
 func TestKilledRunResumes(t *testing.T) {
 	bin := gainsayCommand(t)
 	dir := t.TempDir()
-	prof := filepath.Join(dir, "p.yaml")
-	require.NoError(t, os.WriteFile(prof, []byte("character: c\nfacts:\n  - {id: swim, text: I swim in the sea every morning.}\n  - {id: home, text: I live in the lighthouse.}\n"), 0o644))
-	var in bytes.Buffer
-	texts := []string{"I have never seen the sea.", "The gulls are loud. Fog again.", "Never, not once, have I swum.", "Zürich is far from here."}
-	for i := range 3000 {
-		fmt.Fprintf(&in, "{\"id\": \"r%d\", \"text\": %q}\n", i, texts[i%len(texts)])
-	}
-	replies := filepath.Join(dir, "r.jsonl")
-	require.NoError(t, os.WriteFile(replies, in.Bytes(), 0o644))
+	prof, replies := writeRun(t, dir, 3000, 0)
 	args := func(out string, extra ...string) []string {
 		return append([]string{"check", "--model", "../../nli/testdata/tiny-wordpiece", "--relevance", "0",
 			"--profile", prof, "--replies", replies, "--out", out, "--chunk", "32"}, extra...)

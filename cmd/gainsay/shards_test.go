@@ -17,18 +17,7 @@ import (
 func TestShardsMergeToSingleRun(t *testing.T) {
 	bin := gainsayCommand(t)
 	dir := t.TempDir()
-	prof := filepath.Join(dir, "p.yaml")
-	require.NoError(t, os.WriteFile(prof, []byte("character: c\nfacts:\n  - {id: swim, text: I swim in the sea every morning.}\n  - {id: home, text: I live in the lighthouse.}\n"), 0o644))
-	var in bytes.Buffer
-	texts := []string{"I have never seen the sea.", "The gulls are loud. Fog again.", "Never, not once, have I swum.", "Zürich is far from here."}
-	for i := range 500 {
-		if i%37 == 0 {
-			in.WriteString("\n") // blank lines move line numbers away from reply counts
-		}
-		fmt.Fprintf(&in, "{\"id\": \"r%d\", \"text\": %q}\n", i, texts[i%len(texts)])
-	}
-	replies := filepath.Join(dir, "r.jsonl")
-	require.NoError(t, os.WriteFile(replies, in.Bytes(), 0o644))
+	prof, replies := writeRun(t, dir, 500, 37)
 	check := func(out string, extra ...string) {
 		t.Helper()
 		args := append([]string{"check", "--model", "../../nli/testdata/tiny-wordpiece", "--profile", prof,
