@@ -20,6 +20,10 @@ import (
 	"github.com/gainsay/gainsay/relevance"
 )
 
+// DefaultAttributionBudget is the model inputs spent on attributing one reply at most: a reply of
+// three sentences of 12 words flagged against four facts, read both ways with phrases, costs about 550.
+const DefaultAttributionBudget = 512
+
 // DefaultThreshold is the contradiction probability at which a pair is flagged.
 const DefaultThreshold = 0.5
 
@@ -34,6 +38,10 @@ type Options struct {
 	// RelevanceTop, when above 0, reads at most this many facts per sentence, the most similar ones
 	// above Relevance, so that cost follows the facts a sentence is about rather than the profile size.
 	RelevanceTop int
+	// AttributionBudget bounds the model inputs spent on attributing one reply's findings (0:
+	// DefaultAttributionBudget): findings are attributed from the most probable on while the budget
+	// lasts (the first one always); the others keep their verdict, with no spans and unattributed set.
+	AttributionBudget int
 	// Model names the model in every record (e.g. "builtin@1a2b3c4d").
 	Model string
 	// RunID goes into every record: an identifier of the model, profile and settings (see RunID).
@@ -213,14 +221,33 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 			flagged = append(flagged, k)
 		}
 	}
-	st.Attributed = len(flagged)
 	if len(flagged) > 0 {
-		fp := make([]nli.Scored, len(flagged))
-		for j, k := range flagged {
-			fp[j] = scored[k]
-		}
 		rule := c.spanRule()
-		attrs, err := scorer.Attribute(fp, nli.AttributionOptions{Occlusion: c.Occlusion, Phrases: rule.Phrases})
+		aopts := nli.AttributionOptions{Occlusion: c.Occlusion, Phrases: rule.Phrases}
+		// Per reply, the most probable findings first, while the budget lasts.
+		slices.SortStableFunc(flagged, func(a, b int) int {
+			return cmp.Or(cmp.Compare(refs[a].reply, refs[b].reply),
+				cmp.Compare(scored[b].Probs.Contradiction, scored[a].Probs.Contradiction))
+		})
+		budget := cmp.Or(c.AttributionBudget, DefaultAttributionBudget)
+		var fp []nli.Scored
+		var attributed []int // index into fp of each flagged pair, -1 when over budget
+		spent, reply := 0, -1
+		for _, k := range flagged {
+			if refs[k].reply != reply {
+				spent, reply = 0, refs[k].reply
+			}
+			cost := scorer.AttributionCost(&scored[k], aopts)
+			if spent > 0 && spent+cost > budget {
+				attributed = append(attributed, -1)
+				continue
+			}
+			spent += cost
+			attributed = append(attributed, len(fp))
+			fp = append(fp, scored[k])
+		}
+		st.Attributed = len(fp)
+		attrs, err := scorer.Attribute(fp, aopts)
 		if err != nil {
 			return nil, st, fmt.Errorf("attribution: %w", err)
 		}
@@ -244,10 +271,15 @@ func (c *Checker) check(p *profile.Profile, replies []Reply) ([]Record, Stats, e
 					Text: rec.Text[ref.sent.Start:ref.sent.End],
 				},
 				Probs:     ProbsOf(scored[k].Probs),
-				Spans:     rule.spans(rec.Text, idx, ref.sent.Start, attrs[j]),
-				Truncated: attrs[j].Truncated,
+				Truncated: scored[k].Truncated,
 				order:     ref.fact,
 			})
+			f := &rec.Findings[len(rec.Findings)-1]
+			if a := attributed[j]; a >= 0 {
+				f.Spans = rule.spans(rec.Text, idx, ref.sent.Start, attrs[a])
+			} else {
+				f.Unattributed = true
+			}
 		}
 	}
 	for i := range recs {

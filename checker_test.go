@@ -208,3 +208,16 @@ func TestRunStreamsEveryReply(t *testing.T) {
 }
 
 func textposIndex(s string) textpos.Index { return textpos.New(s) }
+
+func TestAttributionBudget(t *testing.T) {
+	// Two findings (both facts, the same sentence); a budget of one input leaves the second without
+	// spans, marked unattributed, its verdict kept.
+	c := &Checker{Scorer: tinyScorer(t), Options: Options{AttributionBudget: 1}}
+	recs, st := c.Check(maren, []Reply{{ID: "r", Text: "I have never seen the sea.", Line: 1}})
+	require.Len(t, recs[0].Findings, 2)
+	assert.NotEmpty(t, recs[0].Findings[0].Spans)
+	assert.False(t, recs[0].Findings[0].Unattributed)
+	assert.Empty(t, recs[0].Findings[1].Spans)
+	assert.True(t, recs[0].Findings[1].Unattributed)
+	assert.Equal(t, 1, st.Attributed)
+}

@@ -85,6 +85,9 @@ type Finding struct {
 	Spans []Span `json:"spans"`
 	// Truncated: the pair was longer than the model takes and was cut.
 	Truncated bool `json:"truncated,omitempty"`
+	// Unattributed: the reply's attribution budget was spent on more probable findings, so this one
+	// has no spans (Options.AttributionBudget).
+	Unattributed bool `json:"unattributed,omitempty"`
 
 	order int // the fact's place in the profile, for a stable order of findings
 }

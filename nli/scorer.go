@@ -162,6 +162,23 @@ func (s *Scorer) occlusions(sc *Scored, opts AttributionOptions) occlusions {
 	return o
 }
 
+// AttributionCost is how many model inputs Attribute would run for a scored pair.
+func (s *Scorer) AttributionCost(sc *Scored, opts AttributionOptions) int {
+	ws := words(sc.Pair.Hypothesis, sc.hypothesis)
+	n := len(ws)
+	if opts.Phrases {
+		for k := 0; k+1 < len(ws); k++ {
+			if !isPunct(sc.Pair.Hypothesis, ws[k]) && !isPunct(sc.Pair.Hypothesis, ws[k+1]) {
+				n++
+			}
+		}
+	}
+	if sc.Reversed {
+		n *= 2
+	}
+	return n
+}
+
 // Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word (and with
 // Phrases every two adjacent words) is left out in turn and the pair scored again, in each reading the
 // pair was scored in; a variant's probability is the smaller of its readings. The whole pair's

@@ -3,7 +3,8 @@
 For the built-in model (models/builtin) and nli's tiny test models, every pair of
 tokenizer/testdata/parity/pairs.jsonl (SNLI test, MultiNLI, Breaking NLI and stress strings; see its
 SOURCES.md) is encoded with the Hugging Face `tokenizers` package (padding and truncation off) and run
-one pair at a time, so no padding is involved; softmax in float64 over the logits, mapped to labels
+one pair at a time, so no padding is involved; softmax in float64 over the logits (divided by the
+config's calibration temperature), mapped to labels
 through config.json's id2label. The results go where MODELS says, beside each model's other test data.
 
     python scripts/reference/ort_reference.py          # (re)write
@@ -40,13 +41,15 @@ def reference(folder: str, pairs: list[dict]) -> list[dict]:
     sess = ort.InferenceSession(os.path.join(folder, "model.onnx"), so, providers=["CPUExecutionProvider"])
     names = [i.name for i in sess.get_inputs()]
     with open(os.path.join(folder, "config.json")) as f:
-        id2label = {int(k): v.lower() for k, v in json.load(f)["id2label"].items()}
+        cfg = json.load(f)
+    id2label = {int(k): v.lower() for k, v in cfg["id2label"].items()}
+    temperature = float(cfg.get("temperature", 1.0))  # the calibration gainsay applies
     out = []
     for p in pairs:
         e = tk.encode(p["premise"], p["hypothesis"])
         feed = {"input_ids": np.array([e.ids], dtype=np.int64), "attention_mask": np.ones((1, len(e.ids)), dtype=np.int64),
                 "token_type_ids": np.array([e.type_ids], dtype=np.int64)}
-        logits = sess.run(None, {n: feed[n] for n in names})[0][0].astype(np.float64)
+        logits = sess.run(None, {n: feed[n] for n in names})[0][0].astype(np.float64) / temperature
         z = np.exp(logits - logits.max())
         prob = z / z.sum()
         out.append({"source": p["source"], "premise": p["premise"], "hypothesis": p["hypothesis"],
