@@ -24,6 +24,7 @@ type checkFlags struct {
 	relevance     float64
 	relevanceTop  int
 	encoder       string
+	budget        int
 }
 
 func (f *checkFlags) register(c *cobra.Command) {
@@ -40,6 +41,7 @@ func (f *checkFlags) register(c *cobra.Command) {
 	fl.Float64Var(&f.relevance, "relevance", builtin.DefaultRelevance, "least cosine similarity of fact and sentence for the pair to be read (0: read every pair)")
 	fl.IntVar(&f.relevanceTop, "relevance-top", 8, "read at most this many facts per sentence, the most similar (0: no limit)")
 	fl.StringVar(&f.encoder, "encoder", "", "sentence-encoder folder for the relevance gate (default: the built-in all-MiniLM-L6-v2)")
+	fl.IntVar(&f.budget, "attribution-budget", gainsay.DefaultAttributionBudget, "model inputs spent on attributing one reply at most (its most probable finding always)")
 }
 
 // options are the check's options from the flags.
@@ -57,9 +59,12 @@ func (f *checkFlags) options(model string) (gainsay.Options, error) {
 		return gainsay.Options{}, unusable(fmt.Errorf("--span-measure %q: want odds or prob", f.measure))
 	case f.relevance < 0 || f.relevance > 1 || f.relevanceTop < 0:
 		return gainsay.Options{}, unusable(fmt.Errorf("--relevance must be in [0, 1] and --relevance-top at least 0"))
+	case f.budget < 1:
+		return gainsay.Options{}, unusable(fmt.Errorf("--attribution-budget must be at least 1"))
 	}
 	return gainsay.Options{
 		Threshold: f.threshold, Occlusion: how, Model: model, Relevance: f.relevance, RelevanceTop: f.relevanceTop,
+		AttributionBudget: f.budget,
 		Spans: gainsay.SpanRule{MinWeight: f.spanMin, Relative: f.spanRel, Measure: gainsay.Measure(f.measure),
 			Phrases: f.phrases, FunctionWords: f.functionWords},
 	}, nil
