@@ -89,20 +89,11 @@ func (r SpanRule) WordWeights(hypothesis string, a nli.Attribution) []float64 {
 	}
 	for i, w := range a.Words {
 		// Punctuation is never to blame; function words only when the rule allows them.
-		if s := hypothesis[w.Start:w.End]; onlyPunct(s) || (!r.FunctionWords && IsFunctionWord(s)) {
+		if s := hypothesis[w.Start:w.End]; textpos.OnlyPunct(s) || (!r.FunctionWords && IsFunctionWord(s)) {
 			out[i] = 0
 		}
 	}
 	return out
-}
-
-func onlyPunct(s string) bool {
-	for _, r := range s {
-		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
-			return false
-		}
-	}
-	return true
 }
 
 // odds of a probability, kept finite.

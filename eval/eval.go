@@ -3,7 +3,6 @@ package eval
 import (
 	"fmt"
 	"math/rand/v2"
-	"unicode"
 
 	"github.com/gainsay/gainsay"
 	"github.com/gainsay/gainsay/internal/metrics"
@@ -156,7 +155,7 @@ func thresholds(pos []bool, score []float64, target float64) Threshold {
 func wordGold(text string, words []nli.WordWeight, gold []textpos.Range) []bool {
 	out := make([]bool, len(words))
 	for i, w := range words {
-		if onlyPunct(text[w.Start:w.End]) {
+		if textpos.OnlyPunct(text[w.Start:w.End]) {
 			continue
 		}
 		for _, g := range gold {
@@ -167,15 +166,6 @@ func wordGold(text string, words []nli.WordWeight, gold []textpos.Range) []bool 
 		}
 	}
 	return out
-}
-
-func onlyPunct(s string) bool {
-	for _, r := range s {
-		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
-			return false
-		}
-	}
-	return true
 }
 
 type method struct {
@@ -286,7 +276,7 @@ func notInPremise(premise, hypothesis string, words []nli.WordWeight) []float64 
 	out := make([]float64, len(words))
 	for i, w := range words {
 		s := hypothesis[w.Start:w.End]
-		if !onlyPunct(s) && !seen[normWord(s)] {
+		if !textpos.OnlyPunct(s) && !seen[normWord(s)] {
 			out[i] = 1
 		}
 	}

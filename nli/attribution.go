@@ -143,11 +143,4 @@ type PhraseWeight struct {
 }
 
 // isPunct reports a word made of punctuation or symbols only.
-func isPunct(text string, w word) bool {
-	for _, r := range text[w.start:w.end] {
-		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
-			return false
-		}
-	}
-	return true
-}
+func isPunct(text string, w word) bool { return textpos.OnlyPunct(text[w.start:w.end]) }

@@ -132,6 +132,20 @@ func (p pattern) compile() (*regexp2.Regexp, error) {
 	return nil, errors.New("pattern: want String or Regex")
 }
 
+// readReplace reads a Replace component (normalizer or decoder): a pattern and its replacement.
+func readReplace(raw json.RawMessage) (*regexp2.Regexp, string, error) {
+	var c struct {
+		Type    string  `json:"type"`
+		Pattern pattern `json:"pattern"`
+		Content string  `json:"content"`
+	}
+	if err := decodeStrict(raw, &c); err != nil {
+		return nil, "", err
+	}
+	re, err := c.Pattern.compile()
+	return re, c.Content, err
+}
+
 // match is a character range of a text and whether it is a match of the pattern or text between.
 type match struct {
 	start, end int

@@ -121,22 +121,14 @@ func newDecoder(typ string, raw json.RawMessage, path string) (decoder, error) {
 			return out
 		}), nil
 	case "Replace":
-		var c struct {
-			Type    string  `json:"type"`
-			Pattern pattern `json:"pattern"`
-			Content string  `json:"content"`
-		}
-		if err := decodeStrict(raw, &c); err != nil {
-			return nil, err
-		}
-		re, err := c.Pattern.compile()
+		re, content, err := readReplace(raw)
 		if err != nil {
 			return nil, err
 		}
 		return decoderFunc(func(ts []string) []string {
 			out := make([]string, len(ts))
 			for i, t := range ts {
-				s, err := re.Replace(t, strings.ReplaceAll(c.Content, "$", "$$"), -1, -1)
+				s, err := re.Replace(t, strings.ReplaceAll(content, "$", "$$"), -1, -1)
 				if err != nil {
 					s = t
 				}

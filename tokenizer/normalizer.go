@@ -80,19 +80,11 @@ func newNormalizer(typ string, raw json.RawMessage, path string) (normalizer, er
 		}
 		return normalizerFunc(func(t text) text { return t.prepend(c.Prepend) }), nil
 	case "Replace":
-		var c struct {
-			Type    string  `json:"type"`
-			Pattern pattern `json:"pattern"`
-			Content string  `json:"content"`
-		}
-		if err := decodeStrict(raw, &c); err != nil {
-			return nil, err
-		}
-		re, err := c.Pattern.compile()
+		re, content, err := readReplace(raw)
 		if err != nil {
 			return nil, err
 		}
-		return replace{re, c.Content}, nil
+		return replace{re, content}, nil
 	case "Precompiled":
 		var c struct {
 			Type                string `json:"type"`

@@ -3,7 +3,10 @@
 // goes through here.
 package textpos
 
-import "unicode/utf8"
+import (
+	"unicode"
+	"unicode/utf8"
+)
 
 // Index maps byte offsets of one string to code-point offsets.
 type Index struct {
@@ -76,6 +79,16 @@ func TrimRight(s string, start, end int, f func(rune) bool) int {
 		end -= n
 	}
 	return end
+}
+
+// OnlyPunct reports whether s is made of punctuation and symbols only (false for "").
+func OnlyPunct(s string) bool {
+	for _, r := range s {
+		if !unicode.IsPunct(r) && !unicode.IsSymbol(r) {
+			return false
+		}
+	}
+	return s != ""
 }
 
 // Range is a byte range [Start, End) of a text.

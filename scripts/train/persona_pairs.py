@@ -27,8 +27,12 @@ its figures measure generalisation rather than memorised templates.
 Persona sentences and utterances of Synthetic-Persona-Chat (shared/data/persona_chat_synthetic, CC BY
 4.0; Jandaghi et al. 2023) give natural material: a persona sentence against a rule-based negation of
 itself (contradiction), against an utterance of the same speaker that shares its content words
-(consistent: entailment or neutral), and against an utterance of another conversation (neutral).
-Conversations are split 80/20 by index, the last fifth held out.
+(consistent: entailment or neutral), and against an utterance of another conversation (neutral); and
+two nearby utterances of the same speaker (neutral: the conversations were generated to be faithful to
+the personas, so these are same-topic pairs that do not contradict). The last kind matters: DECODE's
+contradictions are same-speaker, same-topic pairs, and without consistent pairs of that kind a model
+learns that a pair about the same thing is a contradiction. Conversations are split 80/20 by index,
+the last fifth held out.
 
 Fixed seed; the same command writes the same files.
 """
@@ -760,10 +764,18 @@ def persona_chat(held: bool, rng: random.Random) -> list[dict]:
                 if cand:
                     out.append({"premise": s, "hypothesis": rng.choice(cand), "label": "neutral",
                                 "source": "personachat:other"})
+    for personas, turns in convs:
+        for u in (1, 2):
+            said = [t for t in turns[u] if "?" not in t and len(t.split()) >= 4]
+            for i in range(len(said)):
+                for j in (i + 1, i + 2):
+                    if j < len(said):
+                        out.append({"premise": said[i], "hypothesis": said[j], "label": "neutral",
+                                    "source": "personachat:same-speaker"})
     rng.shuffle(out)
     # Negations of one sentence are easy and many; keep each kind to a share of the whole.
-    cap = {"personachat:negation": 3000, "personachat:own": 3000, "personachat:other": 2500,
-           "personachat:favourite": 1000}
+    cap = {"personachat:negation": 3000, "personachat:own": 6000, "personachat:other": 2500,
+           "personachat:favourite": 1000, "personachat:same-speaker": 8000}
     scale = 0.25 if held else 1.0
     kept, seen = [], {}
     for p in out:

@@ -139,6 +139,7 @@ def main():
     ap.add_argument("--cad", action="store_true", help="counterfactual SNLI, train split")
     ap.add_argument("--bnc", type=int, default=0, help="dialogue NLI (BNC) training pairs to draw")
     ap.add_argument("--med", type=int, default=0, help="MED monotonicity pairs to draw")
+    ap.add_argument("--init", help="start from this run's model.pt instead of the base model (a second stage)")
     args = ap.parse_args()
 
     os.makedirs(args.out, exist_ok=True)
@@ -222,6 +223,8 @@ def main():
         watch["decode-heldout"] = nli_data.decode(held_out=True)[:300] + nli_data.decode_consistent(held_out=True)[:100]
 
     model = CrossEncoder(base)
+    if args.init:
+        model.load_state_dict(torch.load(os.path.join(args.init, "model.pt"), map_location="cpu"))
     model.train()
     no_decay = ("bias", "LayerNorm.weight")
     params = [
