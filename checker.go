@@ -20,6 +20,11 @@ import (
 	"github.com/gainsay/gainsay/relevance"
 )
 
+// DefaultRelevanceTop is the most facts a sentence is read against (the most similar ones), as the
+// command line uses it: enough for the handful of facts a sentence is about, few enough that cost stops
+// growing with the profile.
+const DefaultRelevanceTop = 8
+
 // DefaultAttributionBudget is the model inputs spent on attributing one reply at most: a reply of
 // three sentences of 12 words flagged against four facts, read both ways with phrases, costs about 550.
 const DefaultAttributionBudget = 512

@@ -11,25 +11,31 @@ import (
 	"github.com/gainsay/gainsay/nli"
 )
 
-// Measure is how a word's effect on a flagged pair is weighed.
+// Measure is how a span's weight is reported.
 type Measure string
 
 const (
-	// OddsShare weighs a word by the share of the pair's contradiction odds that goes when it is left
-	// out: 1 - odds(without) / odds(with), odds(p) = p / (1 - p). It does not vanish on a confident
-	// model: against "My boat is made of wood", "My boat is made of steel" scores 0.9994 and 0.9946
-	// without "steel", a drop of 0.005 in probability but 0.89 of the odds. Default.
+	// OddsShare reports the share of the pair's contradiction odds that goes when the word is left
+	// out: 1 - odds(without) / odds(with), odds(p) = p / (1 - p), in [0, 1]. It does not vanish on a
+	// confident model: against "My boat is made of wood", "My boat is made of steel" scores 0.9994 and
+	// 0.9946 without "steel", a drop of 0.005 in probability but 0.89 of the odds, so a loss weighted
+	// by it still pushes. Default.
 	OddsShare Measure = "odds"
-	// ProbDrop weighs a word by the drop in contradiction probability without it.
+	// ProbDrop reports the drop in contradiction probability without the word.
 	ProbDrop Measure = "prob"
 )
 
-// SpanRule says how attributed words are weighed and which become penalty spans: a word whose weight
-// is at least MinWeight and at least Relative times the pair's largest word weight.
+// SpanRule says which attributed words become penalty spans and what they weigh.
+//
+// Words are chosen, and ranked, by the drop in contradiction probability without them: a word
+// whose drop is at least MinWeight and at least Relative times the strongest word's. On a confident
+// model the culprit's drop stands far above the rest in probability, while in odds every word of a
+// saturated pair moves a share, so probability is the better chooser (measured: scripts/train/
+// span_rules.sh, see the model card); the chosen span's weight is then reported as Measure says.
 type SpanRule struct {
-	MinWeight float64
-	Relative  float64
-	Measure   Measure // "": OddsShare
+	MinWeight float64 // least probability drop
+	Relative  float64 // least share of the strongest word's drop
+	Measure   Measure // the reported weight ("": OddsShare)
 	// Phrases also leaves out every two adjacent words together; a word then weighs at least its
 	// Shapley value in that pair, (v(word) + v(pair) - v(other word)) / 2, so that two words that
 	// carry a contradiction together, either of which suffices, are both found.
@@ -41,39 +47,46 @@ type SpanRule struct {
 	FunctionWords bool
 }
 
-// DefaultSpanRule weighs words by their share of the contradiction odds, with phrases, function
-// words left out, and keeps the words that carry at least half of the strongest word's effect and a
-// tenth of the odds.
+// DefaultSpanRule chooses words that carry at least half of the strongest word's drop in probability
+// and move it measurably (0.001), with phrases and without function words, and reports their share of
+// the odds.
 func DefaultSpanRule() SpanRule {
-	return SpanRule{MinWeight: 0.1, Relative: 0.5, Measure: OddsShare, Phrases: true}
+	return SpanRule{MinWeight: 0.001, Relative: 0.5, Measure: OddsShare, Phrases: true}
 }
 
-// Culprits marks the words the rule keeps, given every word's weight.
-func (r SpanRule) Culprits(weights []float64) []bool {
+// Culprits marks the words the rule keeps, given every word's probability drop (Drops).
+func (r SpanRule) Culprits(drops []float64) []bool {
 	top := 0.0
-	for _, w := range weights {
+	for _, w := range drops {
 		top = max(top, w)
 	}
-	out := make([]bool, len(weights))
+	out := make([]bool, len(drops))
 	if top == 0 || top < r.MinWeight {
 		return out
 	}
-	for i, w := range weights {
+	for i, w := range drops {
 		out[i] = w >= r.MinWeight && w >= r.Relative*top
 	}
 	return out
 }
 
-// WordWeights are the weights of an attribution's words under the rule, in [0, 1] for OddsShare;
-// function words weigh 0 unless the rule allows them. hypothesis is the text the attribution's
-// offsets refer to.
+// Drops are an attribution's words' drops in contradiction probability under the rule (phrases,
+// function words and punctuation at 0): what the rule chooses and ranks by. hypothesis is the text
+// the attribution's offsets refer to.
+func (r SpanRule) Drops(hypothesis string, a nli.Attribution) []float64 {
+	return r.effects(hypothesis, a, func(without float64) float64 { return max(0, a.Contradiction-without) })
+}
+
+// WordWeights are the words' weights as the rule reports them (Measure), under the same phrase,
+// function-word and punctuation rules as Drops.
 func (r SpanRule) WordWeights(hypothesis string, a nli.Attribution) []float64 {
-	effect := func(without float64) float64 {
-		if r.Measure == ProbDrop {
-			return max(0, a.Contradiction-without)
-		}
-		return max(0, 1-odds(without)/odds(a.Contradiction))
+	if r.Measure == ProbDrop {
+		return r.Drops(hypothesis, a)
 	}
+	return r.effects(hypothesis, a, func(without float64) float64 { return max(0, 1-odds(without)/odds(a.Contradiction)) })
+}
+
+func (r SpanRule) effects(hypothesis string, a nli.Attribution, effect func(without float64) float64) []float64 {
 	out := make([]float64, len(a.Words))
 	for i, w := range a.Words {
 		out[i] = effect(w.Without)
@@ -139,7 +152,7 @@ func IsFunctionWord(w string) bool {
 func (r SpanRule) spans(text string, idx textpos.Index, base int, a nli.Attribution) []Span {
 	sentence := text[base:]
 	weights := r.WordWeights(sentence, a)
-	culprits := r.Culprits(weights)
+	culprits := r.Culprits(r.Drops(sentence, a))
 	var spans []Span
 	open := false
 	for i, w := range a.Words {

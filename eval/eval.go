@@ -209,7 +209,7 @@ func rationales(s *nli.Scorer, items []Item, scored []nli.Scored, opts Options) 
 		if k == 0 {
 			continue // the gold range fell on punctuation only
 		}
-		loo := rule.WordWeights(it.Hypothesis, attr[0])
+		loo := rule.Drops(it.Hypothesis, attr[0])
 		nip := notInPremise(it.Premise, it.Hypothesis, words)
 		rnd := make([]float64, len(words))
 		for j := range rnd {

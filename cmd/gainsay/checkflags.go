@@ -32,14 +32,14 @@ func (f *checkFlags) register(c *cobra.Command) {
 	fl := c.Flags()
 	fl.Float64Var(&f.threshold, "threshold", gainsay.DefaultThreshold, "contradiction probability at which a pair is flagged")
 	fl.StringVar(&f.occlusion, "occlusion", string(nli.Delete), "how attribution leaves a word out: delete or mask")
-	fl.StringVar(&f.measure, "span-measure", string(def.Measure), "how a word is weighed: odds (the share of the contradiction odds that goes with it) or prob (the drop in probability)")
-	fl.Float64Var(&f.spanMin, "span-min-weight", def.MinWeight, "least weight for a word to be penalised")
-	fl.Float64Var(&f.spanRel, "span-relative", def.Relative, "least share of the strongest word's weight for a word to be penalised")
+	fl.StringVar(&f.measure, "span-weight", string(def.Measure), "what a span's weight reports: odds (the share of the contradiction odds that goes with it) or prob (the drop in probability)")
+	fl.Float64Var(&f.spanMin, "span-min-drop", def.MinWeight, "least drop in contradiction probability for a word to be penalised")
+	fl.Float64Var(&f.spanRel, "span-relative", def.Relative, "least share of the strongest word's drop for a word to be penalised")
 	fl.BoolVar(&f.phrases, "phrases", def.Phrases, "also leave out every two adjacent words together")
 	fl.BoolVar(&f.functionWords, "function-word-spans", def.FunctionWords, "let pronouns, articles, auxiliaries, prepositions and conjunctions be spans")
 	fl.BoolVar(&f.oneWay, "one-way", false, "read each pair only as fact then sentence (no check that the contradiction holds both ways)")
 	fl.Float64Var(&f.relevance, "relevance", builtin.DefaultRelevance, "least cosine similarity of fact and sentence for the pair to be read (0: read every pair)")
-	fl.IntVar(&f.relevanceTop, "relevance-top", 8, "read at most this many facts per sentence, the most similar (0: no limit)")
+	fl.IntVar(&f.relevanceTop, "relevance-top", gainsay.DefaultRelevanceTop, "read at most this many facts per sentence, the most similar (0: no limit)")
 	fl.StringVar(&f.encoder, "encoder", "", "sentence-encoder folder for the relevance gate (default: the built-in all-MiniLM-L6-v2)")
 	fl.IntVar(&f.budget, "attribution-budget", gainsay.DefaultAttributionBudget, "model inputs spent on attributing one reply at most (its most probable finding always)")
 }
@@ -54,9 +54,9 @@ func (f *checkFlags) options(model string) (gainsay.Options, error) {
 	case f.threshold <= 0 || f.threshold > 1:
 		return gainsay.Options{}, unusable(fmt.Errorf("--threshold must be in (0, 1]"))
 	case f.spanMin < 0 || f.spanMin > 1 || f.spanRel < 0 || f.spanRel > 1:
-		return gainsay.Options{}, unusable(fmt.Errorf("--span-min-weight and --span-relative must be in [0, 1]"))
+		return gainsay.Options{}, unusable(fmt.Errorf("--span-min-drop and --span-relative must be in [0, 1]"))
 	case f.measure != string(gainsay.OddsShare) && f.measure != string(gainsay.ProbDrop):
-		return gainsay.Options{}, unusable(fmt.Errorf("--span-measure %q: want odds or prob", f.measure))
+		return gainsay.Options{}, unusable(fmt.Errorf("--span-weight %q: want odds or prob", f.measure))
 	case f.relevance < 0 || f.relevance > 1 || f.relevanceTop < 0:
 		return gainsay.Options{}, unusable(fmt.Errorf("--relevance must be in [0, 1] and --relevance-top at least 0"))
 	case f.budget < 1:

@@ -1,7 +1,9 @@
 package main
 
 import (
+	"bytes"
 	"os"
+	"strconv"
 	"path/filepath"
 	"testing"
 
@@ -28,6 +30,25 @@ func TestScripts(t *testing.T) {
 		Dir:                 "testdata/script",
 		RequireExplicitExec: true,
 		UpdateScripts:       os.Getenv("GAINSAY_UPDATE_GOLDEN") == "1",
+		Cmds: map[string]func(ts *testscript.TestScript, neg bool, args []string){
+			// cutlines SRC DST N K: DST is the first N lines of SRC and K bytes of the next (a killed write).
+			"cutlines": func(ts *testscript.TestScript, neg bool, args []string) {
+				if len(args) != 4 {
+					ts.Fatalf("usage: cutlines src dst lines bytes")
+				}
+				n, err1 := strconv.Atoi(args[2])
+				k, err2 := strconv.Atoi(args[3])
+				if err1 != nil || err2 != nil {
+					ts.Fatalf("cutlines: lines and bytes must be numbers")
+				}
+				data := []byte(ts.ReadFile(args[0]))
+				at := 0
+				for i := 0; i < n; i++ {
+					at += bytes.IndexByte(data[at:], '\n') + 1
+				}
+				ts.Check(os.WriteFile(ts.MkAbs(args[1]), data[:min(len(data), at+k)], 0o644))
+			},
+		},
 		Setup: func(e *testscript.Env) error {
 			e.Setenv("TINY", tiny)
 			e.Setenv("TINYBPE", tinyBPE)
