@@ -20,8 +20,11 @@ type text []char
 
 func newText(s string) text {
 	out := make(text, 0, len(s))
-	for i, r := range s {
-		out = append(out, char{r, i, i + utf8.RuneLen(r)})
+	// An invalid byte reads as U+FFFD but spans one byte of s, not U+FFFD's three.
+	for i := 0; i < len(s); {
+		r, w := utf8.DecodeRuneInString(s[i:])
+		out = append(out, char{r, i, i + w})
+		i += w
 	}
 	return out
 }
