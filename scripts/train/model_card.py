@@ -239,8 +239,10 @@ morning", love vs hate), an entailment when every world of the fact satisfies th
 otherwise (same-topic compatible pairs, and pairs of different attributes). Whole attributes
 (languages, possessions and their colours, appearance, education) and every fourth value of every list
 are held out. Synthetic-Persona-Chat gives natural material: persona sentences against rule-based
-negations (contradiction), against utterances of the same speaker that share their words (consistent),
-against other conversations' utterances and two nearby utterances of one speaker (neutral).
+negations and against another persona's different favourite (contradiction), against utterances of the
+same speaker that share their words (entailment or neutral by the share of words), and against other
+conversations' utterances (neutral). The generator now also pairs two nearby utterances of one speaker
+(neutral); the runs below say which version each run used.
 
 ## Held-out split
 

@@ -282,7 +282,8 @@ def age_topics(rng, held):
                   lambda w, n=n: w == n)
             t.add([f"I just turned {words}.", f"I turned {n} last month."], lambda w, n=n: w == n, adds=True)
         for lo in (20, 30, 40, 50, 60, 70, 80):
-            t.add([f"I'm in my {TENS[lo // 10]}ies.", f"I am in my {TENS[lo // 10]}ies."],
+            decade = TENS[lo // 10][:-1] + "ies"  # twenty -> twenties
+            t.add([f"I'm in my {decade}.", f"I am in my {decade}."],
                   lambda w, lo=lo: lo <= w < lo + 10)
         t.add(["I'm still in high school.", "I'm in my last year of school."], lambda w: w <= 18, adds=True)
         t.add(["I'm a teenager.", "I'm just a teenager."], lambda w: w <= 19)
