@@ -27,7 +27,7 @@ const RelevanceSHA256 = "2e6f053804955c5960d5fa3fe2b8a229fed794a600da50e03fa35a5
 const DefaultRelevance = 0.08
 
 // SHA256 is the SHA-256 of model.onnx, as in the model card.
-const SHA256 = "e164c9952899afcfba2ce4031686b01d998cd50bb0e65b28c02c1473d277ec04"
+const SHA256 = "d07d99e5e1f680088a244cbcd4aec037f9518bb20a8f0c6e52ec65db622268c5"
 
 // FS holds model.onnx, tokenizer.json and config.json.
 func FS() fs.FS { return files }
