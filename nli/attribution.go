@@ -118,7 +118,8 @@ type AttributionOptions struct {
 // hypothesis word is taken away (Li, Monroe, Jurafsky 2016, "Understanding Neural Networks through
 // Representation Erasure", applied to input words), and with Phrases, when each two adjacent words are.
 type Attribution struct {
-	// Contradiction is the probability for the whole pair.
+	// Contradiction is the whole pair's contradiction probability, read premise then hypothesis (the
+	// reading attributed).
 	Contradiction float64
 	Words         []WordWeight
 	// Phrases are the adjacent word pairs taken away together (with AttributionOptions.Phrases).

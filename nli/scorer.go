@@ -16,8 +16,7 @@ type Runner interface {
 //
 // Unless OneWay, every pair is also read the other way round (hypothesis as premise) and counts as a
 // contradiction only as far as both readings agree: its probabilities are those of the reading with
-// the lower contradiction probability, and attribution weighs words by the drop in that smaller
-// probability. Contradiction is symmetric (if A contradicts B, B contradicts A), while a model that
+// the lower contradiction probability. Attribution reads the pair premise then hypothesis only. Contradiction is symmetric (if A contradicts B, B contradicts A), while a model that
 // sees one only one way round is usually reacting to the wording of one sentence alone, the
 // hypothesis-only artefacts of NLI data (Gururangan et al. 2018, "Annotation Artifacts in Natural
 // Language Inference Data"; Poliak et al. 2018, "Hypothesis Only Baselines in Natural Language
@@ -122,8 +121,8 @@ func (s *Scorer) Score(pairs []Pair) ([]Scored, error) {
 }
 
 // occlusions is the attribution plan of one scored pair: the hypothesis words, the adjacent word
-// pairs taken away together, and the encodings of the pair without each (words, then phrases;
-// forward, then reversed where the pair was read both ways).
+// pairs taken away together, and the encodings of the pair without each (words, then phrases), read
+// premise then hypothesis.
 type occlusions struct {
 	words   []word
 	phrases []int // first word of each phrase
@@ -150,14 +149,9 @@ func (s *Scorer) occlusions(sc *Scored, opts AttributionOptions) occlusions {
 	for _, k := range o.phrases {
 		variants = append(variants, without(sc.hypothesis, ws, k, k+2, opts.Occlusion, mask))
 	}
-	o.encs = make([]Encoding, 0, 2*len(variants))
-	for _, v := range variants {
-		o.encs = append(o.encs, assemble(m.tok, sc.premise, v, m.maxLen))
-	}
-	if sc.Reversed {
-		for _, v := range variants {
-			o.encs = append(o.encs, assemble(m.tok, v, sc.premise, m.maxLen))
-		}
+	o.encs = make([]Encoding, len(variants))
+	for k, v := range variants {
+		o.encs[k] = assemble(m.tok, sc.premise, v, m.maxLen)
 	}
 	return o
 }
@@ -173,15 +167,16 @@ func (s *Scorer) AttributionCost(sc *Scored, opts AttributionOptions) int {
 			}
 		}
 	}
-	if sc.Reversed {
-		n *= 2
-	}
 	return n
 }
 
 // Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word (and with
-// Phrases every two adjacent words) is left out in turn and the pair scored again, in each reading the
-// pair was scored in; a variant's probability is the smaller of its readings. The whole pair's
+// Phrases every two adjacent words) is left out in turn and the pair scored again, premise then
+// hypothesis: the words weighed are the hypothesis's, as in the e-SNLI and Breaking NLI measurements
+// of attribution. Pairs read both ways are still attributed in this reading only: taking the smaller
+// of both readings for every variant cost twice the model inputs and put a gold word first less often
+// on the persona dev set (heaviest span on a gold word 0.735 against 0.750; hit@1 0.640 against
+// 0.680), and so did attributing the reading that counts (0.735; 0.653). The whole pair's
 // probabilities come from Score. The variants of all pairs go to the Runner together, so they fill
 // batches.
 func (s *Scorer) Attribute(scored []Scored, opts AttributionOptions) ([]Attribution, error) {
@@ -199,15 +194,8 @@ func (s *Scorer) Attribute(scored []Scored, opts AttributionOptions) ([]Attribut
 	at := 0
 	for i, o := range plans {
 		sc := scored[i]
-		n := len(o.words) + len(o.phrases)
-		without := func(k int) float64 {
-			c := probs[at+k].Contradiction
-			if sc.Reversed {
-				c = min(c, probs[at+n+k].Contradiction)
-			}
-			return c
-		}
-		full := sc.Probs.Contradiction
+		without := func(k int) float64 { return probs[at+k].Contradiction }
+		full := sc.Forward.Contradiction
 		a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: sc.Truncated}
 		for k, w := range o.words {
 			c := without(k)
