@@ -5,8 +5,9 @@ against: the tokenizers and onnxruntime Python packages, the same model folder, 
 
 Every (fact, sentence) pair (sentences split as gainsay does, approximately: on . ! ? followed by
 space), read fact then sentence and, unless --one-way, sentence then fact (the smaller contradiction
-probability counts); pairs at or above 0.5 are attributed by leaving each sentence word out, read fact
-then sentence (words: whitespace-separated, as a plain implementation would; no two-word phrases). Batches of 32, sorted by length ("length-sorted",
+probability counts); pairs at or above 0.5 are attributed by leaving each sentence word out, and each
+two adjacent words, read fact then sentence (words: whitespace-separated, as a plain implementation
+would). What it leaves out is the relevance gate: it reads every pair. Batches of 32, sorted by length ("length-sorted",
 the fair rival: unsorted batches pad more). Prints JSON: seconds, replies/s, model inputs, time in
 ONNX Runtime's run, padding share.
 """
@@ -111,6 +112,10 @@ def main():
             words = sent.split()
             for k in range(len(words)):
                 v = " ".join(words[:k] + words[k + 1:])
+                variants.append((fact, v))
+                owners.append(i)
+            for k in range(len(words) - 1):  # and every two adjacent words, as gainsay's phrases
+                v = " ".join(words[:k] + words[k + 2:])
                 variants.append((fact, v))
                 owners.append(i)
         q = model.contradiction(variants)
