@@ -16,8 +16,9 @@ type Runner interface {
 //
 // Unless OneWay, every pair is also read the other way round (hypothesis as premise) and counts as a
 // contradiction only as far as both readings agree: its probabilities are those of the reading with
-// the lower contradiction probability. Attribution reads the pair premise then hypothesis only. Contradiction is symmetric (if A contradicts B, B contradicts A), while a model that
-// sees one only one way round is usually reacting to the wording of one sentence alone, the
+// the lower contradiction probability. Attribution reads the pair premise then hypothesis only.
+// Contradiction is symmetric (if A contradicts B, B contradicts A), while a model that sees one only
+// one way round is usually reacting to the wording of one sentence alone, the
 // hypothesis-only artefacts of NLI data (Gururangan et al. 2018, "Annotation Artifacts in Natural
 // Language Inference Data"; Poliak et al. 2018, "Hypothesis Only Baselines in Natural Language
 // Inference"). Entailment is not symmetric, so benchmarks are scored OneWay.
@@ -135,11 +136,7 @@ func (s *Scorer) occlusions(sc *Scored, opts AttributionOptions) occlusions {
 	ws := words(hyp, sc.hypothesis)
 	o := occlusions{words: ws}
 	if opts.Phrases {
-		for k := 0; k+1 < len(ws); k++ {
-			if !isPunct(hyp, ws[k]) && !isPunct(hyp, ws[k+1]) {
-				o.phrases = append(o.phrases, k)
-			}
-		}
+		o.phrases = phraseStarts(hyp, ws)
 	}
 	mask := m.tok.MaskID()
 	variants := make([][]tokenizer.Piece, 0, len(ws)+len(o.phrases))
@@ -156,18 +153,26 @@ func (s *Scorer) occlusions(sc *Scored, opts AttributionOptions) occlusions {
 	return o
 }
 
-// AttributionCost is how many model inputs Attribute would run for a scored pair.
-func (s *Scorer) AttributionCost(sc *Scored, opts AttributionOptions) int {
-	ws := words(sc.Pair.Hypothesis, sc.hypothesis)
-	n := len(ws)
-	if opts.Phrases {
-		for k := 0; k+1 < len(ws); k++ {
-			if !isPunct(sc.Pair.Hypothesis, ws[k]) && !isPunct(sc.Pair.Hypothesis, ws[k+1]) {
-				n++
-			}
+// phraseStarts are the first words of the adjacent word pairs that attribution takes away together:
+// every two neighbours, punctuation aside.
+func phraseStarts(hyp string, ws []word) []int {
+	var out []int
+	for k := 0; k+1 < len(ws); k++ {
+		if !isPunct(hyp, ws[k]) && !isPunct(hyp, ws[k+1]) {
+			out = append(out, k)
 		}
 	}
-	return n
+	return out
+}
+
+// AttributionCost is how many model inputs Attribute would run for a scored pair: one per word and,
+// with Phrases, one per phrase.
+func (s *Scorer) AttributionCost(sc *Scored, opts AttributionOptions) int {
+	ws := words(sc.Pair.Hypothesis, sc.hypothesis)
+	if opts.Phrases {
+		return len(ws) + len(phraseStarts(sc.Pair.Hypothesis, ws))
+	}
+	return len(ws)
 }
 
 // Attribute computes leave-one-word-out attribution for scored pairs: every hypothesis word (and with
@@ -193,16 +198,16 @@ func (s *Scorer) Attribute(scored []Scored, opts AttributionOptions) ([]Attribut
 	out := make([]Attribution, len(scored))
 	at := 0
 	for i, o := range plans {
-		sc := scored[i]
-		without := func(k int) float64 { return probs[at+k].Contradiction }
-		full := sc.Forward.Contradiction
-		a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: sc.Truncated}
+		// o.encs are the words' variants, then the phrases', all read as scored[i].Forward was.
+		got := probs[at : at+len(o.encs)]
+		full := scored[i].Forward.Contradiction
+		a := Attribution{Contradiction: full, Words: make([]WordWeight, len(o.words)), Truncated: scored[i].Truncated}
 		for k, w := range o.words {
-			c := without(k)
+			c := got[k].Contradiction
 			a.Words[k] = WordWeight{Start: w.start, End: w.end, Without: c, Weight: max(0, full-c)}
 		}
 		for j, k := range o.phrases {
-			a.Phrases = append(a.Phrases, PhraseWeight{First: k, Without: without(len(o.words) + j)})
+			a.Phrases = append(a.Phrases, PhraseWeight{First: k, Without: got[len(o.words)+j].Contradiction})
 		}
 		out[i] = a
 		at += len(o.encs)
