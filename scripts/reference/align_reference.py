@@ -29,11 +29,12 @@ from tokenizers import Tokenizer
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.normpath(os.path.join(HERE, "..", ".."))
 sys.path.insert(0, os.path.join(ROOT, "scripts", "python"))
+sys.path.insert(0, os.path.join(ROOT, "scripts", "train"))
 
 from gainsay_train import token_weights  # noqa: E402
+from nli_data import data_dir  # noqa: E402
 
 OUT = os.path.join(ROOT, "align", "testdata")
-DATA = os.environ.get("GAINSAY_DATA", os.path.join(ROOT, "..", "shared", "data"))
 FAMILIES = ("wordpiece", "bpe", "unigram", "splitbpe", "splitbpe-nfc", "spbpe", "metaspace-bpe")
 
 CHAT_STRESS = [
@@ -63,7 +64,7 @@ def _persona_chat_utterances() -> list[str]:
     import csv
     import re
 
-    path = os.path.join(DATA, "persona_chat_synthetic", "Synthetic-Persona-Chat_valid.csv")
+    path = os.path.join(data_dir(), "persona_chat_synthetic", "Synthetic-Persona-Chat_valid.csv")
     with open(path, encoding="utf-8", newline="") as f:
         rows = [r for i, r in enumerate(csv.DictReader(f)) if i % 5 == 4]
     out = []
@@ -78,7 +79,7 @@ def _persona_chat_utterances() -> list[str]:
 def _decode_utterances() -> list[str]:
     import csv
 
-    path = os.path.join(DATA, "decode_pairs", "contradiction_df.tsv")
+    path = os.path.join(data_dir(), "decode_pairs", "contradiction_df.tsv")
     with open(path, encoding="utf-8", newline="") as f:
         rows = list(csv.DictReader(f, delimiter="\t", quoting=csv.QUOTE_NONE))
     return [r["seg2"].strip() for r in rows[::8][:60]]
@@ -147,17 +148,17 @@ def main() -> int:
     ap.add_argument("--check", action="store_true")
     args = ap.parse_args()
     files = {}
-    if os.path.isdir(DATA):
+    if os.path.isdir(data_dir()):
         recs = records()
         files["records.jsonl"] = "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in recs)
     elif args.check:
         # Without the open data (a clean clone on its own), check the expected values against the
         # committed records: they carry every text, so the reference libraries still recompute them.
-        print(f"{DATA}: not found; checking against the committed records.jsonl", file=sys.stderr)
+        print(f"{data_dir()}: not found; checking against the committed records.jsonl", file=sys.stderr)
         with open(os.path.join(OUT, "records.jsonl"), encoding="utf-8") as f:
             recs = [json.loads(line) for line in f]
     else:
-        print(f"{DATA}: not found (set GAINSAY_DATA)", file=sys.stderr)
+        print(f"{data_dir()}: not found (set GAINSAY_DATA)", file=sys.stderr)
         return 2
     for fam in FAMILIES:
         tk = Tokenizer.from_file(os.path.join(ROOT, "tokenizer", "testdata", "tokenizers", fam, "tokenizer.json"))

@@ -48,6 +48,8 @@ import re
 from dataclasses import dataclass, field
 from typing import Callable
 
+from nli_data import data_dir
+
 SEED = 29
 
 # ---------------------------------------------------------------------------------------------------
@@ -785,11 +787,6 @@ def persona_chat(held: bool, rng: random.Random) -> list[dict]:
             kept.append(p)
             seen[k] = seen.get(k, 0) + 1
     return kept
-
-
-def data_dir() -> str:
-    here = os.path.dirname(os.path.abspath(__file__))
-    return os.environ.get("GAINSAY_DATA", os.path.join(here, "..", "..", "..", "shared", "data"))
 
 
 def generate(held: bool, n_topic: int, n_cross: int) -> list[dict]:
